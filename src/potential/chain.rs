@@ -1,0 +1,121 @@
+//! The `[chain]` builder: a conjugated chain as a box with optional ripple,
+//! end caps and heteroatom sites.
+//!
+//! The free-electron model of a conjugated chain puts its pi electrons in a
+//! box of length `L = bonds * bond_length + 2 * end_extension` (atoms sit at
+//! `end_extension + (a - 1) * bond_length`). Bond alternation is modelled by
+//! a cosine ripple of period `2 * bond_length` whose minima sit at the centres
+//! of bonds 1, 3, 5, ... (the double bonds of a polyene); a periodic potential
+//! of this kind opens a gap at the zone edge, so the absorption of long chains
+//! converges (H. Kuhn, J. Chem. Phys. 17, 1198 (1949) introduced the
+//! sinusoidal correction). The ripple covers the whole box, which keeps V(x)
+//! smooth inside it; it vanishes at every atom position.
+
+use super::Term;
+use crate::input::model::{Boundary, ChainSpec, Domain};
+
+/// The domain and the terms a chain stands for.
+pub fn build(chain: &ChainSpec) -> (Domain, Vec<Term>) {
+    let length = chain.box_length();
+    let domain = Domain {
+        from: 0.0,
+        to: length,
+        boundary: Boundary::Walls,
+    };
+    let mut terms = Vec::new();
+    if chain.alternation != 0.0 {
+        // -A cos(2 pi (x - c1) / (2 b)) has its minima at c1, c1 + 2b, ...
+        // (c1: centre of bond 1); written as A cos(2 pi (x - phase) / period)
+        // with phase = c1 + b.
+        let c1 = chain.end_extension + 0.5 * chain.bond_length;
+        terms.push(Term::Ripple {
+            amplitude: chain.alternation,
+            period: 2.0 * chain.bond_length,
+            phase: c1 + chain.bond_length,
+            window: None,
+        });
+    }
+    if chain.end_cap_height != 0.0 && chain.end_cap_width > 0.0 {
+        terms.push(Term::Step {
+            from: 0.0,
+            to: chain.end_cap_width,
+            height: chain.end_cap_height,
+        });
+        terms.push(Term::Step {
+            from: length - chain.end_cap_width,
+            to: length,
+            height: chain.end_cap_height,
+        });
+    }
+    for site in &chain.sites {
+        terms.push(Term::Gauss {
+            center: chain.atom_position(site.atom),
+            height: site.height,
+            width: site.width,
+        });
+    }
+    (domain, terms)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::input::model::Site;
+    use approx::assert_abs_diff_eq;
+
+    fn hexatriene_like() -> ChainSpec {
+        ChainSpec {
+            bonds: 5,
+            bond_length: 1.4,
+            end_extension: 1.4,
+            alternation: 0.5,
+            end_cap_height: 0.0,
+            end_cap_width: 0.0,
+            sites: vec![Site {
+                atom: 3,
+                height: -1.0,
+                width: 0.4,
+            }],
+        }
+    }
+
+    #[test]
+    fn ripple_minima_sit_on_odd_bonds_and_vanish_on_atoms() {
+        let c = ChainSpec {
+            sites: vec![],
+            ..hexatriene_like()
+        };
+        let (d, terms) = build(&c);
+        assert_abs_diff_eq!(d.to, 5.0 * 1.4 + 2.0 * 1.4, epsilon = 1e-12);
+        let v = |x: f64| terms.iter().map(|t| t.eval(x)).sum::<f64>();
+        for bond in 1..=5usize {
+            let centre = c.atom_position(bond) + 0.7;
+            let expected = if bond % 2 == 1 { -0.5 } else { 0.5 };
+            assert_abs_diff_eq!(v(centre), expected, epsilon = 1e-12);
+        }
+        for a in 1..=6 {
+            assert_abs_diff_eq!(v(c.atom_position(a)), 0.0, epsilon = 1e-12);
+        }
+    }
+
+    #[test]
+    fn ideal_chain_has_no_terms() {
+        let c = ChainSpec {
+            alternation: 0.0,
+            sites: vec![],
+            ..hexatriene_like()
+        };
+        let (_, terms) = build(&c);
+        assert!(terms.is_empty());
+    }
+
+    #[test]
+    fn site_sits_on_its_atom() {
+        let c = hexatriene_like();
+        let (_, terms) = build(&c);
+        let Term::Gauss { center, .. } = terms[1] else {
+            panic!("expected the site's Gaussian second");
+        };
+        assert_abs_diff_eq!(center, 1.4 + 2.0 * 1.4, epsilon = 1e-12);
+    }
+}

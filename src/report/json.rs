@@ -1,0 +1,99 @@
+//! JSON documents of the outside contract (`chainwell.solve/1`, ...).
+
+use serde_json::{json, Map, Value};
+
+use crate::input::{Model, SourceText};
+use crate::solve::Solution;
+
+/// Program name and version, in every document.
+pub fn program() -> Value {
+    json!({"name": "chainwell", "version": env!("CARGO_PKG_VERSION")})
+}
+
+/// The echo of the input: the file's text, the overrides and the checked
+/// values that matter for reproducing the run.
+pub fn input_echo(model: &Model, source: &SourceText) -> Value {
+    let u = &model.units;
+    json!({
+        "file": source.name,
+        "text": source.text,
+        "overrides": source.overrides,
+        "checked": {
+            "title": model.title,
+            "mass": model.mass,
+            "domain": {
+                "from": u.length_out(model.domain.from),
+                "to": u.length_out(model.domain.to),
+                "boundary": model.domain.boundary,
+            },
+            "grid": model.grid,
+            "levels": model.levels,
+            "terms": model.potential.terms.len(),
+            "chain": model.chain,
+        }
+    })
+}
+
+/// The `levels` array.
+pub fn levels(model: &Model, sol: &Solution) -> Value {
+    let u = &model.units;
+    Value::Array(
+        sol.levels
+            .iter()
+            .map(|l| {
+                let mut m = Map::new();
+                m.insert("n".into(), json!(l.n));
+                m.insert("energy".into(), json!(u.energy_out(l.energy)));
+                m.insert("nodes".into(), json!(l.nodes));
+                if let Some(b) = l.box_energy {
+                    m.insert("box_energy".into(), json!(u.energy_out(b)));
+                    m.insert("box_ratio".into(), json!(l.energy / b));
+                }
+                if let Some(e) = l.error_estimate {
+                    m.insert("error_estimate".into(), json!(u.energy_out(e)));
+                }
+                Value::Object(m)
+            })
+            .collect(),
+    )
+}
+
+/// The whole `chainwell.solve/1` document. `timing` can be left out so that
+/// documents compare byte for byte across runs.
+pub fn solve_document(
+    model: &Model,
+    source: &SourceText,
+    sol: &Solution,
+    with_timing: bool,
+) -> Value {
+    let u = &model.units;
+    let mut doc = Map::new();
+    doc.insert("format".into(), json!("chainwell.solve/1"));
+    doc.insert("program".into(), program());
+    doc.insert("units".into(), u.to_json());
+    doc.insert(
+        "grid".into(),
+        json!({
+            "points": sol.grid.points,
+            "spacing": u.length_out(sol.grid.spacing),
+            "order": model.grid.order.get(),
+            "scheme": model.grid.scheme,
+            "boundary": sol.grid.boundary,
+        }),
+    );
+    doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));
+    doc.insert("levels".into(), levels(model, sol));
+    doc.insert(
+        "diagnostics".into(),
+        serde_json::to_value(&sol.diagnostics).unwrap_or(Value::Null),
+    );
+    doc.insert("warnings".into(), json!(sol.warnings));
+    if with_timing {
+        doc.insert(
+            "timing".into(),
+            serde_json::to_value(sol.timing).unwrap_or(Value::Null),
+        );
+    }
+    doc.insert("input".into(), input_echo(model, source));
+    Value::Object(doc)
+}

@@ -1,0 +1,62 @@
+//! Readable tables for the terminal.
+
+use std::fmt::Write;
+
+use crate::input::Model;
+use crate::solve::Solution;
+
+/// The table `chainwell solve` prints without `--json`.
+pub fn solve_table(model: &Model, sol: &Solution) -> String {
+    let u = &model.units;
+    let e = u.energy.label();
+    let l = u.length.label();
+    let mut s = String::new();
+    if let Some(t) = &model.title {
+        let _ = writeln!(s, "{t}");
+    }
+    let _ = writeln!(
+        s,
+        "grid: {} points, spacing {:.6} {l}, order {}, {:?}; box length {:.6} {l}",
+        sol.grid.points,
+        u.length_out(sol.grid.spacing),
+        model.grid.order,
+        model.grid.scheme,
+        u.length_out(sol.box_length)
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "{:>5}  {:>18}  {:>5}  {:>18}  {:>10}",
+        "n",
+        format!("energy ({e})"),
+        "nodes",
+        format!("box ({e})"),
+        "ratio"
+    );
+    for lv in &sol.levels {
+        let (b, r) = match lv.box_energy {
+            Some(b) => (
+                format!("{:>18.10}", u.energy_out(b)),
+                format!("{:>10.6}", lv.energy / b),
+            ),
+            None => (format!("{:>18}", "-"), format!("{:>10}", "-")),
+        };
+        let _ = writeln!(
+            s,
+            "{:>5}  {:>18.10}  {:>5}  {b}  {r}",
+            lv.n,
+            u.energy_out(lv.energy),
+            lv.nodes
+        );
+    }
+    let _ = writeln!(s);
+    let _ = writeln!(
+        s,
+        "eigenpairs: {} (residual ratio {:.3}, orthogonality ratio {:.3}); solve {:.3} s",
+        sol.diagnostics.method,
+        sol.diagnostics.residual_ratio,
+        sol.diagnostics.orthogonality_ratio,
+        sol.timing.solve_s
+    );
+    s
+}

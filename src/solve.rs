@@ -1,0 +1,277 @@
+//! The pipeline of one solve: model → grid → potential → Hamiltonian →
+//! selected eigenpairs → levels and wavefunctions.
+
+use std::time::Instant;
+
+use serde::Serialize;
+
+use crate::eigen::{self, EigenError, EigenParams, Method, Problem, Selection};
+use crate::grid::Grid;
+use crate::hamiltonian;
+use crate::input::model::{Boundary, Model, Resolution};
+use crate::observables::states;
+use crate::potential::NonFinite;
+
+/// One computed level.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Level {
+    /// Level number, 1 for the lowest.
+    pub n: usize,
+    /// Energy, eV.
+    pub energy: f64,
+    /// Sign changes of the wavefunction.
+    pub nodes: usize,
+    /// The ideal-box level `n² h² / (8 m L²)` for the domain's length (hard walls only), eV.
+    pub box_energy: Option<f64>,
+    /// Estimated absolute discretisation error of `energy`, eV, when known.
+    pub error_estimate: Option<f64>,
+}
+
+/// How the eigenpairs were found and how good they are.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Diagnostics {
+    /// `max_j ||H z_j - E_j z_j||_1 / (||H||_1 N eps)` (LAPACK DSTT21 form).
+    pub residual_ratio: f64,
+    /// `||Z^T Z - I||_1 / (k eps)` (LAPACK DSTT22 form).
+    pub orthogonality_ratio: f64,
+    /// The eigen-method used.
+    pub method: String,
+    /// Iterations of the eigen-method.
+    pub iterations: usize,
+    /// Eigenvalues below the top of the returned set, by inertia count.
+    pub inertia_below: usize,
+}
+
+/// Wall-clock seconds.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Timing {
+    /// In the eigen-solver alone.
+    pub solve_s: f64,
+    /// The whole solve, grid to levels.
+    pub total_s: f64,
+}
+
+/// Everything one solve computes.
+#[derive(Debug, Clone)]
+pub struct Solution {
+    /// The grid used.
+    pub grid: Grid,
+    /// Positions of the unknowns, Å.
+    pub x: Vec<f64>,
+    /// V at the unknowns, eV.
+    pub potential: Vec<f64>,
+    /// Length of the domain (the box length for walls), Å.
+    pub box_length: f64,
+    /// The levels, ascending.
+    pub levels: Vec<Level>,
+    /// Normalised wavefunctions at the unknowns, one per level.
+    pub psi: Vec<Vec<f64>>,
+    /// Quality of the eigenpairs.
+    pub diagnostics: Diagnostics,
+    /// What the user should know.
+    pub warnings: Vec<String>,
+    /// Seconds spent.
+    pub timing: Timing,
+}
+
+/// Why a solve could not finish.
+#[derive(Debug, thiserror::Error)]
+pub enum SolveError {
+    /// A term is not a finite number at a grid point (bad input).
+    #[error(transparent)]
+    NonFinitePotential(#[from] NonFinite),
+    /// More levels asked for than the grid has (bad input).
+    #[error("levels {first}..{last} were asked for, but a grid of {points} points has only {points} levels; raise grid.points or lower levels.count")]
+    TooManyLevels {
+        /// First level asked for (1-based).
+        first: usize,
+        /// Last level asked for (1-based).
+        last: usize,
+        /// Unknowns of the grid.
+        points: usize,
+    },
+    /// The grid is too small for the finite-difference stencil (bad input).
+    #[error("a grid of {points} points is too small for an order-{order} stencil; use at least {needed} points")]
+    GridTooSmall {
+        /// Unknowns.
+        points: usize,
+        /// Stencil order.
+        order: u32,
+        /// Fewest unknowns that work.
+        needed: usize,
+    },
+    /// The eigen-solver failed (a computation that could not finish).
+    #[error(transparent)]
+    Eigen(#[from] EigenError),
+}
+
+impl SolveError {
+    /// Whether the fault lies in the input (exit status 2) rather than in a
+    /// computation that could not finish (exit status 1).
+    pub fn is_input_error(&self) -> bool {
+        !matches!(self, SolveError::Eigen(e) if !matches!(e, EigenError::SelectionOutOfRange { .. }))
+    }
+}
+
+/// The grid a model asks for. A tolerance is resolved by the refinement of
+/// [`crate::accuracy`]; here it starts from the default spacing.
+pub fn grid_for(model: &Model) -> Grid {
+    match model.grid.resolution {
+        Resolution::Points(n) => Grid::with_points(&model.domain, n),
+        Resolution::Spacing(h) => Grid::with_spacing(&model.domain, h),
+        Resolution::Tolerance(_) => {
+            Grid::with_spacing(&model.domain, crate::input::check::DEFAULT_SPACING_ANGSTROM)
+        }
+    }
+}
+
+/// Solves the model on its own grid.
+pub fn solve(model: &Model) -> Result<Solution, SolveError> {
+    solve_on(model, &grid_for(model), &EigenParams::default())
+}
+
+/// Solves the model on the given grid.
+pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solution, SolveError> {
+    let start = Instant::now();
+    let p = model.grid.order.half_width();
+    let needed = match model.grid.scheme {
+        crate::input::model::Scheme::FiniteDifference => 2 * p + 1,
+        crate::input::model::Scheme::Numerov => 5,
+    };
+    if grid.points < needed {
+        return Err(SolveError::GridTooSmall {
+            points: grid.points,
+            order: model.grid.order.get(),
+            needed,
+        });
+    }
+    let x = grid.positions();
+    let v = model.potential.sample(&x)?;
+    let disc = hamiltonian::build(
+        grid,
+        &v,
+        model.kinetic(),
+        model.grid.order,
+        model.grid.scheme,
+    );
+    let selection = match model.levels.below {
+        Some(energy) => Selection::Below { energy },
+        None => {
+            let last = model.levels.first + model.levels.count - 1;
+            if last > grid.points {
+                return Err(SolveError::TooManyLevels {
+                    first: model.levels.first,
+                    last,
+                    points: grid.points,
+                });
+            }
+            Selection::Index {
+                first: model.levels.first - 1,
+                count: model.levels.count,
+            }
+        }
+    };
+    let problem = Problem {
+        a: &disc.a,
+        b: disc.b.as_ref(),
+    };
+    let t0 = Instant::now();
+    let (pairs, info) = eigen::solve(&problem, &selection, params)?;
+    let solve_s = t0.elapsed().as_secs_f64();
+
+    let h = grid.spacing;
+    let box_length = model.domain.length();
+    let mut levels = Vec::with_capacity(pairs.values.len());
+    let mut psis = Vec::with_capacity(pairs.values.len());
+    for (j, (energy, vector)) in pairs.values.iter().zip(&pairs.vectors).enumerate() {
+        let n = pairs.first + j + 1;
+        let mut psi = disc.psi(vector);
+        states::normalise(&mut psi, h);
+        let box_energy = (grid.boundary == Boundary::Walls)
+            .then(|| model.kinetic() * (n as f64 * std::f64::consts::PI / box_length).powi(2));
+        levels.push(Level {
+            n,
+            energy: *energy,
+            nodes: states::count_nodes(&psi),
+            box_energy,
+            error_estimate: None,
+        });
+        psis.push(psi);
+    }
+    let warnings = warnings(model, grid, &v, &levels);
+    Ok(Solution {
+        grid: grid.clone(),
+        x,
+        potential: v,
+        box_length,
+        levels,
+        psi: psis,
+        diagnostics: Diagnostics {
+            residual_ratio: info.residual_ratio,
+            orthogonality_ratio: info.orthogonality_ratio,
+            method: method_name(info.method).to_string(),
+            iterations: info.iterations,
+            inertia_below: info.inertia_below,
+        },
+        warnings,
+        timing: Timing {
+            solve_s,
+            total_s: start.elapsed().as_secs_f64(),
+        },
+    })
+}
+
+fn method_name(m: Method) -> &'static str {
+    match m {
+        Method::Auto => "auto",
+        Method::Dense => "dense",
+        Method::Tridiagonal => "tridiagonal",
+        Method::ShiftInvert => "shift-invert",
+    }
+}
+
+/// Points per half-wavelength below which a level is poorly resolved
+/// (common practice, no source).
+pub const MIN_POINTS_PER_LOBE: f64 = 10.0;
+
+fn warnings(model: &Model, grid: &Grid, v: &[f64], levels: &[Level]) -> Vec<String> {
+    let mut out = Vec::new();
+    let vmin = v.iter().copied().fold(f64::INFINITY, f64::min);
+    if let Some(top) = levels.last() {
+        let kinetic_energy = top.energy - vmin;
+        if kinetic_energy > 0.0 {
+            let k = (kinetic_energy / model.kinetic()).sqrt();
+            let per_lobe = std::f64::consts::PI / (k * grid.spacing);
+            if per_lobe < MIN_POINTS_PER_LOBE {
+                out.push(format!(
+                    "grid too coarse for level {}: about {:.1} points per half-wavelength where it is fastest (want at least {}); raise grid.points",
+                    top.n, per_lobe, MIN_POINTS_PER_LOBE
+                ));
+            }
+        }
+    }
+    // Hard walls are part of the model for a box or a chain; for any other
+    // potential they are an artefact, and a level above the potential at an
+    // edge feels them.
+    let artificial_walls = grid.boundary == Boundary::Walls
+        && model.chain.is_none()
+        && !model.potential.terms.is_empty();
+    if artificial_walls {
+        let edge = model
+            .potential
+            .eval(model.domain.from)
+            .min(model.potential.eval(model.domain.to));
+        let feeling: Vec<usize> = levels
+            .iter()
+            .filter(|l| l.energy >= edge)
+            .map(|l| l.n)
+            .collect();
+        if let (Some(first), Some(last)) = (feeling.first(), feeling.last()) {
+            out.push(format!(
+                "levels {first}..{last} lie above the potential at the domain's edges ({}) and feel its hard walls; widen the domain if they should be free of them",
+                model.units.energy_out(edge)
+            ));
+        }
+    }
+    out
+}
