@@ -202,8 +202,10 @@ fn mul(m: &SymBanded, x: &[f64], y: &mut [f64]) {
     let n = m.n;
     for (i, yi) in y.iter_mut().enumerate() {
         let mut s = 0.0;
-        for j in i.saturating_sub(m.bands.len() - 1)..(i + m.bands.len()).min(n) {
-            s += get(m, i, j) * x[j];
+        let lo = i.saturating_sub(m.bands.len() - 1);
+        let hi = (i + m.bands.len()).min(n);
+        for (j, xj) in x.iter().enumerate().take(hi).skip(lo) {
+            s += get(m, i, j) * xj;
         }
         if m.wrap {
             let p = m.bands.len() - 1;
@@ -274,7 +276,7 @@ mod tests {
         let g = box_grid(12, Boundary::Periodic);
         let h = build(
             &g,
-            &vec![0.0; 12],
+            &[0.0; 12],
             1.0,
             Order::new(8).unwrap(),
             Scheme::FiniteDifference,

@@ -30,6 +30,7 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod bands;
 pub mod commands;
 pub mod constants;
 pub mod eigen;

@@ -9,7 +9,9 @@ use crate::eigen::{self, EigenError, EigenParams, Method, Problem, Selection};
 use crate::grid::Grid;
 use crate::hamiltonian;
 use crate::input::model::{Boundary, Model, Resolution};
-use crate::observables::states;
+use crate::observables::{
+    self, states, Occupancy, OccupancyError, StateSummary, SumRule, Transition,
+};
 use crate::potential::NonFinite;
 
 /// One computed level.
@@ -25,6 +27,9 @@ pub struct Level {
     pub box_energy: Option<f64>,
     /// Estimated absolute discretisation error of `energy`, eV, when known.
     pub error_estimate: Option<f64>,
+    /// Length of the ideal box that gives this level's energy above the
+    /// potential's floor, Å (none when the level lies at or below the floor).
+    pub effective_length: Option<f64>,
 }
 
 /// How the eigenpairs were found and how good they are.
@@ -66,6 +71,16 @@ pub struct Solution {
     pub levels: Vec<Level>,
     /// Normalised wavefunctions at the unknowns, one per level.
     pub psi: Vec<Vec<f64>>,
+    /// Moments and classically allowed regions, one per level.
+    pub states: Vec<StateSummary>,
+    /// Filling of the levels, when `levels.electrons` is given.
+    pub occupancy: Option<Occupancy>,
+    /// Transitions between computed levels (occupied to empty, or every
+    /// pair when asked).
+    pub transitions: Vec<Transition>,
+    /// Thomas–Reiche–Kuhn sum of level 1 over the computed levels (when
+    /// level 1 is computed, and not on a ring).
+    pub sum_rule: Option<SumRule>,
     /// Quality of the eigenpairs.
     pub diagnostics: Diagnostics,
     /// What the user should know.
@@ -100,6 +115,9 @@ pub enum SolveError {
         /// Fewest unknowns that work.
         needed: usize,
     },
+    /// The electrons cannot be placed in the computed levels (bad input).
+    #[error(transparent)]
+    Occupancy(#[from] OccupancyError),
     /// The eigen-solver failed (a computation that could not finish).
     #[error(transparent)]
     Eigen(#[from] EigenError),
@@ -114,7 +132,7 @@ impl SolveError {
 }
 
 /// The grid a model asks for. A tolerance is resolved by the refinement of
-/// [`crate::accuracy`]; here it starts from the default spacing.
+/// the accuracy module; here it starts from the default spacing.
 pub fn grid_for(model: &Model) -> Grid {
     match model.grid.resolution {
         Resolution::Points(n) => Grid::with_points(&model.domain, n),
@@ -195,9 +213,56 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             nodes: states::count_nodes(&psi),
             box_energy,
             error_estimate: None,
+            effective_length: None,
         });
         psis.push(psi);
     }
+    let floor = v.iter().copied().fold(f64::INFINITY, f64::min);
+    let kinetic = model.kinetic();
+    for l in &mut levels {
+        l.effective_length = observables::effective_box_length(l.energy - floor, l.n, kinetic);
+    }
+    let energies: Vec<f64> = levels.iter().map(|l| l.energy).collect();
+    let states_summary: Vec<StateSummary> = levels
+        .iter()
+        .zip(&psis)
+        .map(|(l, psi)| observables::summarise(l.n, &x, &v, psi, h, l.energy))
+        .collect();
+    let first_n = pairs.first + 1;
+    let occupancy = match model.levels.electrons {
+        Some(e) => Some(observables::fill(&energies, first_n, e)?),
+        None => None,
+    };
+    let occupations: Vec<f64> = occupancy
+        .as_ref()
+        .map(|o| o.occupations.clone())
+        .unwrap_or_default();
+    let ring = grid.boundary == Boundary::Periodic;
+    let transitions = if occupancy.is_none() && !model.spectrum.all_pairs {
+        vec![]
+    } else if ring {
+        ring_transitions(
+            grid,
+            &psis,
+            &energies,
+            first_n,
+            &occupations,
+            model.spectrum.all_pairs,
+        )
+    } else {
+        observables::transitions(
+            &x,
+            &psis,
+            &energies,
+            first_n,
+            &occupations,
+            h,
+            Some(box_length).filter(|_| model.potential.terms.is_empty() || model.chain.is_some()),
+            model.spectrum.all_pairs,
+        )
+    };
+    let sum_rule = (first_n == 1 && !ring && levels.len() > 1)
+        .then(|| observables::trk_sum(&x, &psis, &energies, h, kinetic, 0));
     let warnings = warnings(model, grid, &v, &levels);
     Ok(Solution {
         grid: grid.clone(),
@@ -206,6 +271,10 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         box_length,
         levels,
         psi: psis,
+        states: states_summary,
+        occupancy,
+        transitions,
+        sum_rule,
         diagnostics: Diagnostics {
             residual_ratio: info.residual_ratio,
             orthogonality_ratio: info.orthogonality_ratio,
@@ -219,6 +288,59 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             total_s: start.elapsed().as_secs_f64(),
         },
     })
+}
+
+/// Transitions on a ring of radius `R = L / 2 pi`: the dipole of a planar
+/// ring has the components `<i|R cos theta|j>` and `<i|R sin theta|j>`
+/// (`theta = 2 pi (x - from) / L`); the reported dipole is their length and
+/// the strength, proportional to `|d|^2`, the sum of both components'.
+fn ring_transitions(
+    grid: &Grid,
+    psis: &[Vec<f64>],
+    energies: &[f64],
+    first_n: usize,
+    occupations: &[f64],
+    all_pairs: bool,
+) -> Vec<Transition> {
+    let length = grid.spacing * grid.points as f64;
+    let radius = length / (2.0 * std::f64::consts::PI);
+    let theta: Vec<f64> = grid
+        .positions()
+        .iter()
+        .map(|x| 2.0 * std::f64::consts::PI * (x - grid.from) / length)
+        .collect();
+    let cx: Vec<f64> = theta.iter().map(|t| radius * t.cos()).collect();
+    let sy: Vec<f64> = theta.iter().map(|t| radius * t.sin()).collect();
+    let h = grid.spacing;
+    let tx = observables::transitions(
+        &cx,
+        psis,
+        energies,
+        first_n,
+        occupations,
+        h,
+        None,
+        all_pairs,
+    );
+    let ty = observables::transitions(
+        &sy,
+        psis,
+        energies,
+        first_n,
+        occupations,
+        h,
+        None,
+        all_pairs,
+    );
+    tx.into_iter()
+        .zip(ty)
+        .map(|(a, b)| Transition {
+            dipole: a.dipole.hypot(b.dipole),
+            dipole_debye: a.dipole_debye.hypot(b.dipole_debye),
+            strength: a.strength + b.strength,
+            ..a
+        })
+        .collect()
 }
 
 fn method_name(m: Method) -> &'static str {

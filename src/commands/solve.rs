@@ -20,13 +20,18 @@ pub struct SolveOptions {
 
 /// Turns a pipeline error into a command error, locating input faults.
 pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> CommandError {
+    let file = source.locate(None);
+    let at = |key: &str, fallback: &str| {
+        let loc = model.location_of(key, &model.location_of(fallback, &file));
+        CommandError::Input(InputError::new(loc, key, e.to_string()))
+    };
     match &e {
         SolveError::NonFinitePotential(nf) => {
             let (key, location) = model
                 .term_locations
                 .get(nf.term)
                 .cloned()
-                .unwrap_or_else(|| ("term".into(), source.locate(None)));
+                .unwrap_or_else(|| ("term".into(), file.clone()));
             CommandError::Input(InputError::new(
                 location,
                 key,
@@ -38,20 +43,17 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
                 ),
             ))
         }
-        SolveError::TooManyLevels { .. } | SolveError::GridTooSmall { .. } => CommandError::Input(
-            InputError::new(source.locate(None), "levels.count", e.to_string()),
-        ),
-        SolveError::Eigen(_) => {
-            if e.is_input_error() {
-                CommandError::Input(InputError::new(
-                    source.locate(None),
-                    "levels",
-                    e.to_string(),
-                ))
+        SolveError::Occupancy(_) => at("levels.electrons", "levels"),
+        SolveError::TooManyLevels { .. } => {
+            if model.key_locations.contains_key("levels.count") {
+                at("levels.count", "levels")
             } else {
-                CommandError::Compute(e.to_string())
+                at("grid.points", "grid")
             }
         }
+        SolveError::GridTooSmall { .. } => at("grid.points", "grid"),
+        SolveError::Eigen(_) if e.is_input_error() => at("levels", "levels"),
+        SolveError::Eigen(_) => CommandError::Compute(e.to_string()),
     }
 }
 

@@ -151,6 +151,41 @@ impl<'a> Checker<'a> {
         let electrons_default = chain.as_ref().map(ChainSpec::atoms);
         let levels = self.check_levels(raw.levels.as_ref(), electrons_default)?;
         let spectrum = self.check_spectrum(raw.spectrum.as_ref())?;
+        let mut key_locations = BTreeMap::new();
+        let mut note = |key: &str, span: Option<Range<usize>>| {
+            if let Some(span) = span {
+                key_locations.insert(key.to_string(), self.loc(span));
+            }
+        };
+        let lv = raw.levels.as_ref().map(Spanned::get_ref);
+        note("levels", raw.levels.as_ref().map(Spanned::span));
+        note(
+            "levels.count",
+            lv.and_then(|l| l.count.as_ref().map(Spanned::span)),
+        );
+        note(
+            "levels.first",
+            lv.and_then(|l| l.first.as_ref().map(Spanned::span)),
+        );
+        note(
+            "levels.below",
+            lv.and_then(|l| l.below.as_ref().map(Spanned::span)),
+        );
+        note(
+            "levels.electrons",
+            lv.and_then(|l| l.electrons.as_ref().map(Spanned::span))
+                .or_else(|| raw.chain.as_ref().map(|c| c.get_ref().bonds.span())),
+        );
+        let gr = raw.grid.as_ref().map(Spanned::get_ref);
+        note("grid", raw.grid.as_ref().map(Spanned::span));
+        note(
+            "grid.points",
+            gr.and_then(|g| g.points.as_ref().map(Spanned::span)),
+        );
+        note(
+            "grid.spacing",
+            gr.and_then(|g| g.spacing.as_ref().map(Spanned::span)),
+        );
         Ok(Model {
             title: raw.title.map(Spanned::into_inner),
             units: self.units,
@@ -162,6 +197,7 @@ impl<'a> Checker<'a> {
             term_locations,
             chain,
             spectrum,
+            key_locations,
         })
     }
 

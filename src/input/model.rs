@@ -166,6 +166,20 @@ pub struct Model {
     pub chain: Option<ChainSpec>,
     /// Spectrum options.
     pub spectrum: SpectrumSpec,
+    /// Where some keys were written (`levels.count`, `levels.electrons`,
+    /// `grid.points`, ...), for faults that only the solve can find.
+    pub key_locations: std::collections::BTreeMap<String, Location>,
+}
+
+impl Model {
+    /// The error location for `key`: where it was written, else the section
+    /// or the file.
+    pub fn location_of(&self, key: &str, file: &Location) -> Location {
+        self.key_locations
+            .get(key)
+            .cloned()
+            .unwrap_or_else(|| file.clone())
+    }
 }
 
 impl Model {

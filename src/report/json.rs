@@ -83,6 +83,19 @@ pub fn solve_document(
     );
     doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));
     doc.insert("levels".into(), levels(model, sol));
+    if let Some(occ) = &sol.occupancy {
+        doc.insert("occupancy".into(), occupancy(model, occ));
+    }
+    if !sol.transitions.is_empty() || sol.occupancy.is_some() {
+        doc.insert("transitions".into(), transitions(model, &sol.transitions));
+    }
+    if let Some(sr) = &sol.sum_rule {
+        doc.insert(
+            "sum_rule".into(),
+            json!({"from": 1, "value": sr.value, "levels_used": sr.levels_used, "completeness": sr.completeness}),
+        );
+    }
+    doc.insert("states".into(), states(model, sol));
     doc.insert(
         "diagnostics".into(),
         serde_json::to_value(&sol.diagnostics).unwrap_or(Value::Null),
@@ -96,4 +109,70 @@ pub fn solve_document(
     }
     doc.insert("input".into(), input_echo(model, source));
     Value::Object(doc)
+}
+
+/// The `occupancy` object.
+pub fn occupancy(model: &Model, o: &crate::observables::Occupancy) -> Value {
+    let u = &model.units;
+    json!({
+        "electrons": o.electrons,
+        "homo": o.homo,
+        "lumo": o.lumo,
+        "singly_occupied": o.singly_occupied,
+        "gap": o.gap.map(|g| u.energy_out(g)),
+        "wavelength_nm": o.wavelength_nm,
+        "total_energy": u.energy_out(o.total_energy),
+        "total_energy_complete": o.total_energy_complete,
+    })
+}
+
+/// The `transitions` array.
+pub fn transitions(model: &Model, list: &[crate::observables::Transition]) -> Value {
+    let u = &model.units;
+    Value::Array(
+        list.iter()
+            .map(|t| {
+                let mut m = Map::new();
+                m.insert("from".into(), json!(t.from));
+                m.insert("to".into(), json!(t.to));
+                m.insert("energy".into(), json!(u.energy_out(t.energy)));
+                m.insert(
+                    "wavelength_nm".into(),
+                    json!(finite_or_null(t.wavelength_nm)),
+                );
+                m.insert("dipole".into(), json!(u.dipole_out(t.dipole)));
+                m.insert("dipole_debye".into(), json!(t.dipole_debye));
+                m.insert("strength".into(), json!(t.strength));
+                m.insert("occupancy_factor".into(), json!(t.occupancy_factor));
+                if let Some(b) = t.box_dipole {
+                    m.insert("box_dipole".into(), json!(u.dipole_out(b)));
+                }
+                Value::Object(m)
+            })
+            .collect(),
+    )
+}
+
+/// Per-level moments and classically allowed regions.
+pub fn states(model: &Model, sol: &Solution) -> Value {
+    let u = &model.units;
+    Value::Array(
+        sol.states
+            .iter()
+            .zip(&sol.levels)
+            .map(|(s, l)| {
+                json!({
+                    "n": s.n,
+                    "mean_x": u.length_out(s.mean_x),
+                    "spread": u.length_out(s.spread),
+                    "allowed": s.allowed.iter().map(|(a, b)| [u.length_out(*a), u.length_out(*b)]).collect::<Vec<_>>(),
+                    "effective_length": l.effective_length.map(|x| u.length_out(x)),
+                })
+            })
+            .collect(),
+    )
+}
+
+fn finite_or_null(x: f64) -> Option<f64> {
+    x.is_finite().then_some(x)
 }
