@@ -35,6 +35,10 @@ enum Command {
         /// Leave timings out of the JSON, so that runs compare byte for byte.
         #[arg(long)]
         no_timing: bool,
+        /// Write levels.csv, wavefunctions.csv, transitions.csv and
+        /// spectrum.csv into this folder.
+        #[arg(long, value_name = "DIR")]
+        csv: Option<PathBuf>,
     },
 }
 
@@ -45,11 +49,13 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             set,
             json,
             no_timing,
+            csv,
         } => {
             let opts = commands::solve::SolveOptions {
                 overrides: commands::parse_overrides(&set)?,
                 json,
                 no_timing,
+                csv_dir: csv,
             };
             let (out, warnings) = commands::solve::run(&input, &opts)?;
             for w in warnings {

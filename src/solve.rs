@@ -397,3 +397,16 @@ fn warnings(model: &Model, grid: &Grid, v: &[f64], levels: &[Level]) -> Vec<Stri
     }
     out
 }
+
+/// The absorption spectrum of a solution's transitions, broadened as the
+/// model's `[spectrum]` says, on a wavelength grid that covers the bands.
+pub fn spectrum(model: &Model, sol: &Solution) -> observables::Spectrum {
+    let lines: Vec<(f64, f64)> = sol.transitions.iter().map(|t| (t.energy, t.strength)).collect();
+    let shape = if model.spectrum.lorentzian {
+        observables::LineShape::Lorentzian
+    } else {
+        observables::LineShape::Gaussian
+    };
+    let grid = observables::default_wavelength_grid(&lines, model.spectrum.fwhm);
+    observables::absorption(&lines, shape, model.spectrum.fwhm, &grid)
+}

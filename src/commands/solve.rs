@@ -16,6 +16,9 @@ pub struct SolveOptions {
     pub json: bool,
     /// Leave timings out of the JSON (for byte-identical documents).
     pub no_timing: bool,
+    /// Write levels.csv, wavefunctions.csv, transitions.csv and
+    /// spectrum.csv into this folder.
+    pub csv_dir: Option<std::path::PathBuf>,
 }
 
 /// Turns a pipeline error into a command error, locating input faults.
@@ -62,6 +65,13 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
 pub fn run(path: &Path, opts: &SolveOptions) -> Result<(String, Vec<String>), CommandError> {
     let (model, source) = input::load(path, &opts.overrides)?;
     let sol: Solution = solve::solve(&model).map_err(|e| solve_error(&model, &source, e))?;
+    if let Some(dir) = &opts.csv_dir {
+        let spectrum = solve::spectrum(&model, &sol);
+        let files = report::csv::solve_files(&model, &sol, &spectrum);
+        report::csv::write_solve_files(dir, &files).map_err(|e| {
+            CommandError::Compute(format!("cannot write CSV files into {}: {e}", dir.display()))
+        })?;
+    }
     let out = if opts.json {
         let doc = report::json::solve_document(&model, &source, &sol, !opts.no_timing);
         let mut s =

@@ -49,6 +49,57 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             lv.nodes
         );
     }
+    if let Some(o) = &sol.occupancy {
+        let _ = writeln!(s);
+        let mut line = format!("{} electrons: HOMO {}", o.electrons, o.homo);
+        if let Some(so) = o.singly_occupied {
+            let _ = write!(line, " (singly occupied: level {so})");
+        }
+        if let Some(l) = o.lumo {
+            let _ = write!(line, ", LUMO {l}");
+        }
+        if let Some(g) = o.gap {
+            let _ = write!(line, ", gap {:.6} {e}", u.energy_out(g));
+        }
+        if let Some(w) = o.wavelength_nm {
+            let _ = write!(line, ", wavelength {w:.2} nm");
+        }
+        let _ = writeln!(s, "{line}");
+    }
+    if !sol.transitions.is_empty() {
+        let _ = writeln!(s);
+        let _ = writeln!(
+            s,
+            "{:>4} {:>4}  {:>14}  {:>14}  {:>14}  {:>10}  {:>10}",
+            "from",
+            "to",
+            format!("energy ({e})"),
+            "wavelength (nm)",
+            format!("dipole (e {l})"),
+            "debye",
+            "strength"
+        );
+        for t in &sol.transitions {
+            let _ = writeln!(
+                s,
+                "{:>4} {:>4}  {:>14.6}  {:>14.2}  {:>14.6}  {:>10.4}  {:>10.5}",
+                t.from,
+                t.to,
+                u.energy_out(t.energy),
+                t.wavelength_nm,
+                u.dipole_out(t.dipole),
+                t.dipole_debye,
+                t.strength
+            );
+        }
+    }
+    if let Some(sr) = &sol.sum_rule {
+        let _ = writeln!(
+            s,
+            "\nThomas-Reiche-Kuhn sum for level 1 over the {} computed levels: {:.6} (1 when complete)",
+            sr.levels_used, sr.value
+        );
+    }
     let _ = writeln!(s);
     let _ = writeln!(
         s,
