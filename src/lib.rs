@@ -30,6 +30,7 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod accuracy;
 pub mod bands;
 pub mod commands;
 pub mod constants;
@@ -39,6 +40,7 @@ pub mod hamiltonian;
 pub mod input;
 pub mod observables;
 pub mod output;
+pub mod plot;
 pub mod potential;
 pub mod report;
 pub mod solve;

@@ -17,6 +17,54 @@ struct Cli {
     command: Command,
 }
 
+/// Figure options, shared by every command.
+#[derive(clap::Args, Debug, Clone, Default)]
+struct PlotArgs {
+    /// Draw a figure into FILE (.svg or .png).
+    #[arg(long, value_name = "FILE")]
+    plot: Option<PathBuf>,
+    /// Which figure, where the command draws more than one.
+    #[arg(long, value_name = "KIND")]
+    figure: Option<String>,
+    /// Figure size: WxH in pixels (1200x800) or WxHcm (16x10cm).
+    #[arg(long, value_name = "SIZE")]
+    size: Option<String>,
+    /// Dots per inch for sizes in cm (default 300).
+    #[arg(long)]
+    dpi: Option<f64>,
+    /// Type size in points (default 12).
+    #[arg(long, value_name = "PT")]
+    font_pt: Option<f64>,
+    /// Line width in points (default 1.2).
+    #[arg(long, value_name = "PT")]
+    line_pt: Option<f64>,
+    /// Energy window LO:HI, input energy units.
+    #[arg(long, value_name = "LO:HI", allow_hyphen_values = true)]
+    energy_window: Option<String>,
+    /// Horizontal window LO:HI, in the figure's x unit.
+    #[arg(long, value_name = "LO:HI", allow_hyphen_values = true)]
+    x_window: Option<String>,
+    /// Levels to show, e.g. 1,2,5.
+    #[arg(long, value_name = "N,N,...")]
+    levels: Option<String>,
+}
+
+impl PlotArgs {
+    fn options(self) -> commands::figure::FigureOptions {
+        commands::figure::FigureOptions {
+            path: self.plot,
+            kind: self.figure,
+            size: self.size,
+            dpi: self.dpi,
+            font_pt: self.font_pt,
+            line_pt: self.line_pt,
+            energy_window: self.energy_window,
+            x_window: self.x_window,
+            levels: self.levels,
+        }
+    }
+}
+
 #[derive(Subcommand)]
 enum Command {
     /// Levels and wavefunctions of one input file.
@@ -39,6 +87,30 @@ enum Command {
         /// spectrum.csv into this folder.
         #[arg(long, value_name = "DIR")]
         csv: Option<PathBuf>,
+        /// Figures: states (default), density, spectrum.
+        #[command(flatten)]
+        plot: PlotArgs,
+    },
+    /// The levels on grids whose spacing halves, with the observed order of
+    /// convergence; flags levels whose order falls short of the scheme's.
+    #[command(
+        after_help = "Example:\n  chainwell converge potentials/harmonic_well.toml --grids 4"
+    )]
+    Converge {
+        /// The input file (TOML); its grid is the finest.
+        input: PathBuf,
+        /// Override an input value: KEY=VALUE.
+        #[arg(long = "set", value_name = "KEY=VALUE")]
+        set: Vec<String>,
+        /// Number of grids (at least 3).
+        #[arg(long, default_value_t = 4)]
+        grids: usize,
+        /// Print one JSON document on stdout.
+        #[arg(long)]
+        json: bool,
+        /// Figure: errors (error against spacing, log-log).
+        #[command(flatten)]
+        plot: PlotArgs,
     },
 }
 
@@ -50,18 +122,35 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             json,
             no_timing,
             csv,
+            plot,
         } => {
             let opts = commands::solve::SolveOptions {
                 overrides: commands::parse_overrides(&set)?,
                 json,
                 no_timing,
                 csv_dir: csv,
+                figure: plot.options(),
             };
             let (out, warnings) = commands::solve::run(&input, &opts)?;
             for w in warnings {
                 eprintln!("warning: {w}");
             }
             print_stdout(&out)
+        }
+        Command::Converge {
+            input,
+            set,
+            grids,
+            json,
+            plot,
+        } => {
+            let opts = commands::converge::ConvergeOptions {
+                overrides: commands::parse_overrides(&set)?,
+                grids,
+                json,
+                figure: plot.options(),
+            };
+            print_stdout(&commands::converge::run(&input, &opts)?)
         }
     }
 }

@@ -6,7 +6,7 @@ use std::time::Instant;
 use serde::Serialize;
 
 use crate::eigen::{self, EigenError, EigenParams, Method, Problem, Selection};
-use crate::grid::Grid;
+use crate::grid::{align, Grid};
 use crate::hamiltonian;
 use crate::input::model::{Boundary, Model, Resolution};
 use crate::observables::{
@@ -27,6 +27,10 @@ pub struct Level {
     pub box_energy: Option<f64>,
     /// Estimated absolute discretisation error of `energy`, eV, when known.
     pub error_estimate: Option<f64>,
+    /// Richardson-extrapolated energy, eV, when estimated.
+    pub extrapolated: Option<f64>,
+    /// Observed order of convergence, when measurable.
+    pub observed_order: Option<f64>,
     /// Length of the ideal box that gives this level's energy above the
     /// potential's floor, Å (none when the level lies at or below the floor).
     pub effective_length: Option<f64>,
@@ -45,6 +49,15 @@ pub struct Diagnostics {
     pub iterations: usize,
     /// Eigenvalues below the top of the returned set, by inertia count.
     pub inertia_below: usize,
+}
+
+/// The potential's jumps and the grid.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EdgeReport {
+    /// Positions of the jumps inside the domain, Å.
+    pub positions: Vec<f64>,
+    /// Whether every jump sits on a grid point.
+    pub aligned: bool,
 }
 
 /// Wall-clock seconds.
@@ -83,6 +96,13 @@ pub struct Solution {
     pub sum_rule: Option<SumRule>,
     /// Quality of the eigenpairs.
     pub diagnostics: Diagnostics,
+    /// The round-off floor of the eigenvalues on this grid, eV.
+    pub roundoff_floor: f64,
+    /// Whether the potential jumps inside the domain, and whether every jump
+    /// sits on a grid point.
+    pub edges: EdgeReport,
+    /// How the grid was refined to a tolerance, when one was asked for.
+    pub refinement: Option<crate::accuracy::Refinement>,
     /// What the user should know.
     pub warnings: Vec<String>,
     /// Seconds spent.
@@ -118,6 +138,20 @@ pub enum SolveError {
     /// The electrons cannot be placed in the computed levels (bad input).
     #[error(transparent)]
     Occupancy(#[from] OccupancyError),
+    /// A tolerance cannot be met (bad input: it names why).
+    #[error("grid.tolerance = {tolerance} cannot be met: {reason}")]
+    ToleranceUnreachable {
+        /// The tolerance asked for.
+        tolerance: f64,
+        /// Why not.
+        reason: String,
+    },
+    /// Too few points for a convergence study.
+    #[error("a grid of {points} points is too coarse for a convergence study of these levels; raise grid.points")]
+    TooCoarseToConverge {
+        /// Unknowns of the finest grid.
+        points: usize,
+    },
     /// The eigen-solver failed (a computation that could not finish).
     #[error(transparent)]
     Eigen(#[from] EigenError),
@@ -131,21 +165,117 @@ impl SolveError {
     }
 }
 
-/// The grid a model asks for. A tolerance is resolved by the refinement of
-/// the accuracy module; here it starts from the default spacing.
-pub fn grid_for(model: &Model) -> Grid {
+/// The number of steps across the domain a model asks for (before
+/// alignment). A tolerance starts from the default spacing.
+pub fn wanted_steps(model: &Model) -> usize {
     match model.grid.resolution {
-        Resolution::Points(n) => Grid::with_points(&model.domain, n),
-        Resolution::Spacing(h) => Grid::with_spacing(&model.domain, h),
+        Resolution::Points(n) => Grid::with_points(&model.domain, n).steps(),
+        Resolution::Spacing(h) => Grid::with_spacing(&model.domain, h).steps(),
         Resolution::Tolerance(_) => {
-            Grid::with_spacing(&model.domain, crate::input::check::DEFAULT_SPACING_ANGSTROM)
+            Grid::with_spacing(&model.domain, crate::input::check::DEFAULT_SPACING_ANGSTROM).steps()
         }
     }
 }
 
-/// Solves the model on its own grid.
+/// The jumps of the model's potential strictly inside its domain, Å.
+pub fn interior_edges(model: &Model) -> Vec<f64> {
+    align::interior_edges(&model.domain, &model.potential.discontinuities())
+}
+
+/// A grid of about `steps` steps for the model: when the potential jumps,
+/// the nearest step count (a multiple of `multiple`, at most 10 % more)
+/// that puts every jump on a grid point, so that halving the spacing keeps
+/// them there.
+pub fn grid_near(model: &Model, steps: usize, multiple: usize) -> Grid {
+    let edges = interior_edges(model);
+    let steps = if edges.is_empty() {
+        steps
+    } else {
+        align::aligned_steps(&model.domain, &edges, steps, multiple).unwrap_or(steps)
+    };
+    Grid::with_steps(&model.domain, steps)
+}
+
+/// The grid a model asks for, aligned with the potential's jumps.
+pub fn grid_for(model: &Model) -> Grid {
+    grid_near(model, wanted_steps(model), 4)
+}
+
+/// Options of a solve.
+#[derive(Debug, Clone)]
+pub struct SolveOptions {
+    /// Eigen-solver parameters.
+    pub eigen: EigenParams,
+    /// Estimate each level's discretisation error from two coarser grids
+    /// (Richardson); costs about 0.75 of one more solve.
+    pub estimate: bool,
+}
+
+impl Default for SolveOptions {
+    fn default() -> Self {
+        Self {
+            eigen: EigenParams::default(),
+            estimate: true,
+        }
+    }
+}
+
+/// Solves the model on its own grid, with error estimates (or, for a
+/// tolerance, on the grid the refinement settles on).
 pub fn solve(model: &Model) -> Result<Solution, SolveError> {
-    solve_on(model, &grid_for(model), &EigenParams::default())
+    solve_with(model, &SolveOptions::default())
+}
+
+/// Solves the model with the given options.
+pub fn solve_with(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError> {
+    if let Resolution::Tolerance(tol) = model.grid.resolution {
+        return crate::accuracy::refine(model, tol, opts);
+    }
+    let mut sol = solve_on(model, &grid_for(model), &opts.eigen)?;
+    if opts.estimate {
+        crate::accuracy::estimate(model, &mut sol, &opts.eigen)?;
+    }
+    Ok(sol)
+}
+
+/// The round-off floor of eigenvalues on `grid`: `eps ||H||_1`, with
+/// `||H||_1 <= (t / h^2) sum_d |c_d| + max |V|` (any backward-stable
+/// eigen-solver is accurate to a small multiple of it; J. Demmel, Applied
+/// Numerical Linear Algebra, SIAM 1997, sec. 5.2).
+pub fn roundoff_floor(model: &Model, grid: &Grid, v: &[f64]) -> f64 {
+    let c = crate::grid::second_derivative_weights(model.grid.order);
+    let sum: f64 = c[0].abs() + 2.0 * c[1..].iter().map(|x| x.abs()).sum::<f64>();
+    let vmax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+    f64::EPSILON * (model.kinetic() / (grid.spacing * grid.spacing) * sum + vmax)
+}
+
+/// The energies of levels `first..first + count` (0-based) on `grid`, with
+/// nothing else computed: the coarse grids of an error estimate.
+pub fn energies_on(
+    model: &Model,
+    grid: &Grid,
+    first: usize,
+    count: usize,
+    params: &EigenParams,
+) -> Result<Vec<f64>, SolveError> {
+    let x = grid.positions();
+    let edges = interior_edges(model);
+    let v = model
+        .potential
+        .sample_with_edges(&x, &edges, 1e-9 * grid.spacing)?;
+    let disc = hamiltonian::build(
+        grid,
+        &v,
+        model.kinetic(),
+        model.grid.order,
+        model.grid.scheme,
+    );
+    let problem = Problem {
+        a: &disc.a,
+        b: disc.b.as_ref(),
+    };
+    let (pairs, _) = eigen::solve(&problem, &Selection::Index { first, count }, params)?;
+    Ok(pairs.values)
 }
 
 /// Solves the model on the given grid.
@@ -164,7 +294,10 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         });
     }
     let x = grid.positions();
-    let v = model.potential.sample(&x)?;
+    let edges = interior_edges(model);
+    let v = model
+        .potential
+        .sample_with_edges(&x, &edges, 1e-9 * grid.spacing)?;
     let disc = hamiltonian::build(
         grid,
         &v,
@@ -213,6 +346,8 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             nodes: states::count_nodes(&psi),
             box_energy,
             error_estimate: None,
+            extrapolated: None,
+            observed_order: None,
             effective_length: None,
         });
         psis.push(psi);
@@ -263,7 +398,18 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     };
     let sum_rule = (first_n == 1 && !ring && levels.len() > 1)
         .then(|| observables::trk_sum(&x, &psis, &energies, h, kinetic, 0));
-    let warnings = warnings(model, grid, &v, &levels);
+    let edge_report = EdgeReport {
+        aligned: align::is_aligned(&model.domain, &edges, grid.steps()),
+        positions: edges,
+    };
+    let mut warnings = warnings(model, grid, &v, &levels);
+    if !edge_report.aligned {
+        warnings.push(format!(
+            "the potential jumps at x = {:?} between grid points: levels then converge at low, erratic order and error estimates are unreliable; put the jumps at simple fractions of the domain",
+            edge_report.positions.iter().map(|x| model.units.length_out(*x)).collect::<Vec<_>>()
+        ));
+    }
+    let roundoff = roundoff_floor(model, grid, &v);
     Ok(Solution {
         grid: grid.clone(),
         x,
@@ -272,6 +418,9 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         levels,
         psi: psis,
         states: states_summary,
+        roundoff_floor: roundoff,
+        edges: edge_report,
+        refinement: None,
         occupancy,
         transitions,
         sum_rule,
@@ -401,7 +550,11 @@ fn warnings(model: &Model, grid: &Grid, v: &[f64], levels: &[Level]) -> Vec<Stri
 /// The absorption spectrum of a solution's transitions, broadened as the
 /// model's `[spectrum]` says, on a wavelength grid that covers the bands.
 pub fn spectrum(model: &Model, sol: &Solution) -> observables::Spectrum {
-    let lines: Vec<(f64, f64)> = sol.transitions.iter().map(|t| (t.energy, t.strength)).collect();
+    let lines: Vec<(f64, f64)> = sol
+        .transitions
+        .iter()
+        .map(|t| (t.energy, t.strength))
+        .collect();
     let shape = if model.spectrum.lorentzian {
         observables::LineShape::Lorentzian
     } else {

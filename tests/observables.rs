@@ -24,14 +24,31 @@ fn box_dipoles_match_the_closed_form() {
         let (n, m) = (t.from as f64, t.to as f64);
         if (t.from + t.to) % 2 == 1 {
             let exact = -8.0 * l * n * m / (PI * PI * (n * n - m * m).powi(2));
-            assert!((t.dipole / exact - 1.0).abs() < 1e-8, "{}->{}: {} vs {exact}", t.from, t.to, t.dipole);
+            assert!(
+                (t.dipole / exact - 1.0).abs() < 1e-8,
+                "{}->{}: {} vs {exact}",
+                t.from,
+                t.to,
+                t.dipole
+            );
             checked += 1;
         } else {
-            assert!(t.dipole.abs() < 1e-8 * l, "{}->{} should vanish: {}", t.from, t.to, t.dipole);
+            assert!(
+                t.dipole.abs() < 1e-8 * l,
+                "{}->{} should vanish: {}",
+                t.from,
+                t.to,
+                t.dipole
+            );
         }
         // The closed-form box dipole is reported beside the computed one.
         let b = t.box_dipole.unwrap();
-        assert!((b - t.dipole).abs() < 1e-8 * l, "{}->{}: box {b}", t.from, t.to);
+        assert!(
+            (b - t.dipole).abs() < 1e-8 * l,
+            "{}->{}: box {b}",
+            t.from,
+            t.to
+        );
     }
     assert!(checked >= 8);
 }
@@ -56,9 +73,20 @@ fn harmonic_oscillator_dipoles_and_selection_rule() {
         let v = (t.from - 1) as f64;
         if t.to == t.from + 1 {
             let exact = ((v + 1.0) * x0).sqrt();
-            assert!((t.dipole.abs() / exact - 1.0).abs() < 1e-8, "{}->{}", t.from, t.to);
+            assert!(
+                (t.dipole.abs() / exact - 1.0).abs() < 1e-8,
+                "{}->{}",
+                t.from,
+                t.to
+            );
         } else {
-            assert!(t.dipole.abs() < 1e-8 * x0.sqrt(), "{}->{}: {}", t.from, t.to, t.dipole);
+            assert!(
+                t.dipole.abs() < 1e-8 * x0.sqrt(),
+                "{}->{}: {}",
+                t.from,
+                t.to,
+                t.dipole
+            );
         }
     }
 }
@@ -80,7 +108,10 @@ fn chain_filling_and_wavelength() {
     let sol = solve("[chain]\nbonds = 9\nalternation = 0.6\n[grid]\npoints = 700\norder = 8\n");
     let occ = sol.occupancy.as_ref().unwrap();
     assert_eq!(occ.electrons, 10);
-    assert_eq!((occ.homo, occ.lumo, occ.singly_occupied), (5, Some(6), None));
+    assert_eq!(
+        (occ.homo, occ.lumo, occ.singly_occupied),
+        (5, Some(6), None)
+    );
     let gap = sol.levels[5].energy - sol.levels[4].energy;
     assert!((occ.gap.unwrap() - gap).abs() < 1e-12);
     assert!((occ.wavelength_nm.unwrap() * gap / 1_239.841_984 - 1.0).abs() < 1e-9);

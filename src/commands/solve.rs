@@ -19,6 +19,9 @@ pub struct SolveOptions {
     /// Write levels.csv, wavefunctions.csv, transitions.csv and
     /// spectrum.csv into this folder.
     pub csv_dir: Option<std::path::PathBuf>,
+    /// `--plot` and its options: figures `states` (default), `density`,
+    /// `spectrum`.
+    pub figure: super::figure::FigureOptions,
 }
 
 /// Turns a pipeline error into a command error, locating input faults.
@@ -54,7 +57,10 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
                 at("grid.points", "grid")
             }
         }
-        SolveError::GridTooSmall { .. } => at("grid.points", "grid"),
+        SolveError::GridTooSmall { .. } | SolveError::TooCoarseToConverge { .. } => {
+            at("grid.points", "grid")
+        }
+        SolveError::ToleranceUnreachable { .. } => at("grid.tolerance", "grid"),
         SolveError::Eigen(_) if e.is_input_error() => at("levels", "levels"),
         SolveError::Eigen(_) => CommandError::Compute(e.to_string()),
     }
@@ -69,8 +75,18 @@ pub fn run(path: &Path, opts: &SolveOptions) -> Result<(String, Vec<String>), Co
         let spectrum = solve::spectrum(&model, &sol);
         let files = report::csv::solve_files(&model, &sol, &spectrum);
         report::csv::write_solve_files(dir, &files).map_err(|e| {
-            CommandError::Compute(format!("cannot write CSV files into {}: {e}", dir.display()))
+            CommandError::Compute(format!(
+                "cannot write CSV files into {}: {e}",
+                dir.display()
+            ))
         })?;
+    }
+    if opts.figure.path.is_some() {
+        let fig = match opts.figure.kind(&["states", "density", "spectrum"])? {
+            "spectrum" => super::figure::spectrum(&sol, &solve::spectrum(&model, &sol)),
+            kind => super::figure::states(&model, &sol, kind == "density"),
+        };
+        opts.figure.render(&fig)?;
     }
     let out = if opts.json {
         let doc = report::json::solve_document(&model, &source, &sol, !opts.no_timing);

@@ -5,6 +5,7 @@
 //! walls and `points` counts the unknowns. On a ring the unknowns are
 //! `x_i = from + i h`, `i = 0..N`, `h = L / N`.
 
+pub mod align;
 mod stencil;
 
 pub use stencil::{dispersion, second_derivative_weights, Order};
@@ -47,6 +48,24 @@ impl Grid {
             Boundary::Periodic => steps,
         };
         Self::with_points(domain, points.max(3))
+    }
+
+    /// A grid of `steps` steps (intervals) on `domain`: `steps - 1` unknowns
+    /// with walls, `steps` on a ring.
+    pub fn with_steps(domain: &Domain, steps: usize) -> Self {
+        let points = match domain.boundary {
+            Boundary::Walls => steps.saturating_sub(1),
+            Boundary::Periodic => steps,
+        };
+        Self::with_points(domain, points)
+    }
+
+    /// Number of steps (intervals) across the domain.
+    pub fn steps(&self) -> usize {
+        match self.boundary {
+            Boundary::Walls => self.points + 1,
+            Boundary::Periodic => self.points,
+        }
     }
 
     /// Position of unknown `i` (0-based), Å.

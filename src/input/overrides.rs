@@ -124,12 +124,22 @@ pub fn apply<'a>(
     if i >= parts.len() {
         return Err(format!("`{}` names a table entry, not a value", ov.key));
     }
+    // The grid's resolution keys exclude each other: setting one replaces
+    // whichever the file gave.
+    if parts.len() == 2 && parts[0] == "grid" && RESOLUTION_KEYS.contains(&parts[1]) {
+        for other in RESOLUTION_KEYS.iter().filter(|k| **k != parts[1]) {
+            table.remove(*other);
+        }
+    }
     table.insert(
         Spanned::new(span.clone(), Cow::Owned(parts[i].to_string())),
         Spanned::new(span, value),
     );
     Ok(())
 }
+
+/// `[grid]` keys of which an input gives at most one.
+pub const RESOLUTION_KEYS: [&str; 3] = ["points", "spacing", "tolerance"];
 
 /// Reads an override's value text as a TOML value, or as a bare string when
 /// it is not one.

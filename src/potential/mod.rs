@@ -53,6 +53,28 @@ impl Potential {
         Ok(v)
     }
 
+    /// Like [`Potential::sample`], but at a point within `tol` of one of the
+    /// `edges` V is the mean of its left and right limits, so that a jump on
+    /// a grid point keeps the discretisation error smooth in the spacing.
+    pub fn sample_with_edges(
+        &self,
+        xs: &[f64],
+        edges: &[f64],
+        tol: f64,
+    ) -> Result<Vec<f64>, NonFinite> {
+        let mut v = self.sample(xs)?;
+        if edges.is_empty() {
+            return Ok(v);
+        }
+        for (vi, &x) in v.iter_mut().zip(xs) {
+            if edges.iter().any(|&s| (x - s).abs() <= tol) {
+                let d = 1e-9 * (1.0 + x.abs());
+                *vi = 0.5 * (self.eval(x - d) + self.eval(x + d));
+            }
+        }
+        Ok(v)
+    }
+
     /// Positions (Å) where some term jumps: step edges, window ends, table
     /// ends. Finite differences lose their order there; the grid is laid so
     /// that these fall midway between grid points.

@@ -11,7 +11,11 @@ use crate::output::write_atomic;
 use crate::solve::Solution;
 
 /// The four files' contents, by file name.
-pub fn solve_files(model: &Model, sol: &Solution, spectrum: &Spectrum) -> Vec<(&'static str, String)> {
+pub fn solve_files(
+    model: &Model,
+    sol: &Solution,
+    spectrum: &Spectrum,
+) -> Vec<(&'static str, String)> {
     let u = &model.units;
     let (e, l) = (u.energy.label(), u.length.label());
     let mut levels = format!(

@@ -52,6 +52,12 @@ pub fn levels(model: &Model, sol: &Solution) -> Value {
                 if let Some(e) = l.error_estimate {
                     m.insert("error_estimate".into(), json!(u.energy_out(e)));
                 }
+                if let Some(e) = l.extrapolated {
+                    m.insert("extrapolated".into(), json!(u.energy_out(e)));
+                }
+                if let Some(q) = l.observed_order {
+                    m.insert("observed_order".into(), json!(q));
+                }
                 Value::Object(m)
             })
             .collect(),
@@ -79,6 +85,10 @@ pub fn solve_document(
             "order": model.grid.order.get(),
             "scheme": model.grid.scheme,
             "boundary": sol.grid.boundary,
+            "roundoff_floor": u.energy_out(sol.roundoff_floor),
+            "jumps": sol.edges.positions.iter().map(|x| u.length_out(*x)).collect::<Vec<_>>(),
+            "jumps_on_grid_points": sol.edges.aligned,
+            "refinement": sol.refinement,
         }),
     );
     doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));

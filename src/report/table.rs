@@ -24,11 +24,21 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
         u.length_out(sol.box_length)
     );
     let _ = writeln!(s);
+    if let Some(r) = &sol.refinement {
+        let tried: Vec<String> = r.steps.iter().map(|s| s.points.to_string()).collect();
+        let _ = writeln!(
+            s,
+            "refined to relative tolerance {:e}: grids of {} points",
+            r.tolerance,
+            tried.join(", ")
+        );
+    }
     let _ = writeln!(
         s,
-        "{:>5}  {:>18}  {:>5}  {:>18}  {:>10}",
+        "{:>5}  {:>18}  {:>10}  {:>5}  {:>18}  {:>10}",
         "n",
         format!("energy ({e})"),
+        "+-",
         "nodes",
         format!("box ({e})"),
         "ratio"
@@ -41,9 +51,13 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             ),
             None => (format!("{:>18}", "-"), format!("{:>10}", "-")),
         };
+        let err = match lv.error_estimate {
+            Some(x) => format!("{:>10.1e}", u.energy_out(x)),
+            None => format!("{:>10}", "-"),
+        };
         let _ = writeln!(
             s,
-            "{:>5}  {:>18.10}  {:>5}  {b}  {r}",
+            "{:>5}  {:>18.10}  {err}  {:>5}  {b}  {r}",
             lv.n,
             u.energy_out(lv.energy),
             lv.nodes

@@ -1,0 +1,225 @@
+//! Figure options shared by every command's `--plot`, and the figures built
+//! from a command's results (in the input's units).
+
+use std::path::{Path, PathBuf};
+
+use super::CommandError;
+use crate::accuracy::Convergence;
+use crate::input::model::Boundary;
+use crate::input::Model;
+use crate::observables::Spectrum;
+use crate::plot::{
+    self, ConvergeFigure, ErrorSeries, Figure, Size, StateLevel, StatesFigure, Stick, Style,
+};
+use crate::solve::Solution;
+
+/// `--plot` and the options that shape the figure.
+#[derive(Debug, Clone, Default)]
+pub struct FigureOptions {
+    /// Where to write the figure (`.svg` or `.png`).
+    pub path: Option<PathBuf>,
+    /// Which figure, where a command draws more than one.
+    pub kind: Option<String>,
+    /// `WxH` in pixels, or `WxHcm` in centimetres (at `dpi`).
+    pub size: Option<String>,
+    /// Dots per inch for sizes in centimetres (default 300).
+    pub dpi: Option<f64>,
+    /// Type size in points.
+    pub font_pt: Option<f64>,
+    /// Line width in points.
+    pub line_pt: Option<f64>,
+    /// `LO:HI` energy window, input energy units.
+    pub energy_window: Option<String>,
+    /// `LO:HI` horizontal window, in the figure's x unit.
+    pub x_window: Option<String>,
+    /// Levels to show, e.g. `1,2,5`.
+    pub levels: Option<String>,
+}
+
+fn usage(msg: String) -> CommandError {
+    CommandError::Usage(msg)
+}
+
+fn window(flag: &str, text: &Option<String>) -> Result<Option<(f64, f64)>, CommandError> {
+    let Some(t) = text else { return Ok(None) };
+    let bad = || usage(format!("{flag} {t}: expected LO:HI with LO < HI"));
+    let (a, b) = t.split_once(':').ok_or_else(bad)?;
+    let (a, b): (f64, f64) = (
+        a.trim().parse().map_err(|_| bad())?,
+        b.trim().parse().map_err(|_| bad())?,
+    );
+    if !(a.is_finite() && b.is_finite() && a < b) {
+        return Err(bad());
+    }
+    Ok(Some((a, b)))
+}
+
+impl FigureOptions {
+    /// The plot style these options ask for.
+    pub fn style(&self) -> Result<Style, CommandError> {
+        let mut style = Style::default();
+        if let Some(s) = &self.size {
+            let bad = || {
+                usage(format!(
+                    "--size {s}: expected WxH (pixels) or WxHcm, e.g. 1200x800 or 16x10cm"
+                ))
+            };
+            let (body, cm) = match s.strip_suffix("cm") {
+                Some(b) => (b, true),
+                None => (s.as_str(), false),
+            };
+            let (w, h) = body.split_once('x').ok_or_else(bad)?;
+            style.size = if cm {
+                Size::Centimetres {
+                    w: w.trim().parse().map_err(|_| bad())?,
+                    h: h.trim().parse().map_err(|_| bad())?,
+                    dpi: self.dpi.unwrap_or(300.0),
+                }
+            } else {
+                Size::Pixels {
+                    w: w.trim().parse().map_err(|_| bad())?,
+                    h: h.trim().parse().map_err(|_| bad())?,
+                }
+            };
+        }
+        if let Some(f) = self.font_pt {
+            style.font_pt = f;
+        }
+        if let Some(l) = self.line_pt {
+            style.line_pt = l;
+        }
+        style.energy_window = window("--energy-window", &self.energy_window)?;
+        style.x_window = window("--x-window", &self.x_window)?;
+        if let Some(l) = &self.levels {
+            let list: Result<Vec<usize>, _> =
+                l.split(',').map(|x| x.trim().parse::<usize>()).collect();
+            style.levels = Some(list.map_err(|_| {
+                usage(format!(
+                    "--levels {l}: expected level numbers such as 1,2,5"
+                ))
+            })?);
+        }
+        Ok(style)
+    }
+
+    /// Checks the figure kind against the command's choices; the first is
+    /// the default.
+    pub fn kind<'a>(&'a self, choices: &[&'a str]) -> Result<&'a str, CommandError> {
+        match &self.kind {
+            None => Ok(choices[0]),
+            Some(k) if choices.contains(&k.as_str()) => Ok(k.as_str()),
+            Some(k) => Err(usage(format!(
+                "--figure {k}: this command draws {}",
+                choices.join(", ")
+            ))),
+        }
+    }
+
+    /// Renders `figure` to the `--plot` path, if one was given.
+    pub fn render(&self, figure: &Figure) -> Result<(), CommandError> {
+        let Some(path) = &self.path else {
+            return Ok(());
+        };
+        let style = self.style()?;
+        render_to(figure, &style, path)
+    }
+}
+
+fn render_to(figure: &Figure, style: &Style, path: &Path) -> Result<(), CommandError> {
+    plot::render(figure, style, path).map_err(|e| match e {
+        plot::PlotError::UnknownFormat(_)
+        | plot::PlotError::BadSize(_)
+        | plot::PlotError::BadStyle(_) => usage(format!("--plot {}: {e}", path.display())),
+        other => CommandError::Compute(format!("cannot draw {}: {other}", path.display())),
+    })
+}
+
+/// The potential with each level across its allowed region and its
+/// wavefunction (or density) drawn at its energy.
+pub fn states(model: &Model, sol: &Solution, density: bool) -> Figure {
+    let u = &model.units;
+    let walls = sol.grid.boundary == Boundary::Walls;
+    let scale = u.length.in_angstrom().sqrt();
+    let mut x: Vec<f64> = sol.x.iter().map(|x| u.length_out(*x)).collect();
+    let mut v: Vec<f64> = sol.potential.iter().map(|e| u.energy_out(*e)).collect();
+    if walls {
+        let (a, b) = (model.domain.from, model.domain.to);
+        x.insert(0, u.length_out(a));
+        x.push(u.length_out(b));
+        v.insert(0, u.energy_out(model.potential.eval(a)));
+        v.push(u.energy_out(model.potential.eval(b)));
+    }
+    let occupations = sol
+        .occupancy
+        .as_ref()
+        .map(|o| o.occupations.clone())
+        .unwrap_or_default();
+    let levels = sol
+        .levels
+        .iter()
+        .zip(&sol.psi)
+        .zip(&sol.states)
+        .enumerate()
+        .map(|(j, ((l, psi), st))| {
+            let mut p: Vec<f64> = psi.iter().map(|p| p * scale).collect();
+            if walls {
+                p.insert(0, 0.0);
+                p.push(0.0);
+            }
+            StateLevel {
+                n: l.n,
+                energy: u.energy_out(l.energy),
+                psi: p,
+                allowed: st
+                    .allowed
+                    .iter()
+                    .map(|(a, b)| (u.length_out(*a), u.length_out(*b)))
+                    .collect(),
+                occupation: occupations
+                    .get(j)
+                    .map_or(0, |o| o.round().clamp(0.0, 2.0) as u8),
+            }
+        })
+        .collect();
+    let mut f = StatesFigure::new(x, v, levels);
+    f.density = density;
+    f.x_unit = u.length.label().to_string();
+    f.energy_unit = u.energy.label().to_string();
+    Figure::States(f)
+}
+
+/// Molar absorptivity against wavelength, with the transitions as sticks.
+pub fn spectrum(sol: &Solution, sp: &Spectrum) -> Figure {
+    let sticks = sol
+        .transitions
+        .iter()
+        .filter(|t| t.wavelength_nm.is_finite() && t.strength > 0.0)
+        .map(|t| Stick {
+            wavelength: t.wavelength_nm,
+            strength: t.strength,
+        })
+        .collect();
+    Figure::Spectrum(plot::SpectrumFigure::new(
+        sp.wavelength_nm.clone(),
+        sp.epsilon.clone(),
+        sticks,
+    ))
+}
+
+/// Error against spacing on log-log axes, with the expected slope.
+pub fn converge(model: &Model, conv: &Convergence) -> Figure {
+    let u = &model.units;
+    let series = conv
+        .rows
+        .iter()
+        .map(|r| ErrorSeries {
+            label: format!("n = {}", r.n),
+            error: r.errors.iter().map(|e| u.energy_out(*e)).collect(),
+        })
+        .collect();
+    let h = conv.spacings.iter().map(|h| u.length_out(*h)).collect();
+    let mut f = ConvergeFigure::new(h, series, conv.expected_order);
+    f.h_unit = u.length.label().to_string();
+    f.error_unit = u.energy.label().to_string();
+    Figure::Converge(f)
+}

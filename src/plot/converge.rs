@@ -1,0 +1,460 @@
+//! Convergence figure: absolute error of each level against the grid
+//! spacing h on log-log axes, with a dashed reference line of slope p, the
+//! order of the discretisation, `|error| = C h^p`. A scheme of order p
+//! shows as data parallel to the line once h is small enough (R. J.
+//! LeVeque, Finite Difference Methods for Ordinary and Partial Differential
+//! Equations, SIAM 2007, Appendix A.6).
+//!
+//! The reference line passes a factor 0.4 below the first series' error at
+//! its smallest spacing, so it runs beside the data rather than on it.
+//! Zero or negative errors cannot be shown on a log axis and are skipped.
+
+use super::axes::{
+    check, check_finite, check_len, clip_polyline, draw_err, extent, label_areas, nice, outline,
+    text, titled, usable, Bounds, Pt,
+};
+use super::style::Px;
+use super::{PlotError, Style};
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+/// Factor by which the reference line sits below the anchoring point.
+pub const REFERENCE_OFFSET: f64 = 0.4;
+
+/// Errors of one level (or quantity) at each spacing.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ErrorSeries {
+    /// Legend text, e.g. "n = 1".
+    pub label: String,
+    /// Absolute errors, one per spacing, in the figure's error unit.
+    pub error: Vec<f64>,
+}
+
+/// Error against spacing on log-log axes.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ConvergeFigure {
+    /// Grid spacings (> 0), in `h_unit`.
+    pub h: Vec<f64>,
+    /// One series per level.
+    pub series: Vec<ErrorSeries>,
+    /// Expected order p of the scheme (> 0): slope of the reference line.
+    pub order: f64,
+    /// Unit of h, default "Å".
+    pub h_unit: String,
+    /// Unit of the error, default "eV".
+    pub error_unit: String,
+}
+
+impl ConvergeFigure {
+    /// A figure with units "Å" and "eV".
+    pub fn new(h: Vec<f64>, series: Vec<ErrorSeries>, order: f64) -> Self {
+        ConvergeFigure {
+            h,
+            series,
+            order,
+            h_unit: "Å".into(),
+            error_unit: "eV".into(),
+        }
+    }
+
+    /// Checks lengths, finiteness, positive spacings and order.
+    pub(super) fn validate(&self) -> Result<(), PlotError> {
+        check("spacings", &self.h)?;
+        if let Some(i) = self.h.iter().position(|h| *h <= 0.0) {
+            return Err(PlotError::Invalid(format!(
+                "spacing {i} is not positive ({})",
+                self.h[i]
+            )));
+        }
+        if self.series.is_empty() {
+            return Err(PlotError::Empty("error series".into()));
+        }
+        for s in &self.series {
+            check_len(&format!("errors {}", s.label), self.h.len(), s.error.len())?;
+            check_finite(&format!("errors {}", s.label), &s.error)?;
+        }
+        if !(self.order.is_finite() && self.order > 0.0) {
+            return Err(PlotError::Invalid(format!(
+                "order {} must be positive",
+                self.order
+            )));
+        }
+        Ok(())
+    }
+}
+
+/// Clips a polyline in log10 space and maps the pieces back.
+fn clip_log(pts: &[Pt], b: &Bounds) -> Vec<Vec<Pt>> {
+    let lb = Bounds {
+        x0: b.x0.log10(),
+        x1: b.x1.log10(),
+        y0: b.y0.log10(),
+        y1: b.y1.log10(),
+    };
+    let lp: Vec<Pt> = pts.iter().map(|p| (p.0.log10(), p.1.log10())).collect();
+    clip_polyline(&lp, &lb)
+        .into_iter()
+        .map(|piece| {
+            piece
+                .into_iter()
+                .map(|(x, y)| (10f64.powf(x), 10f64.powf(y)))
+                .collect()
+        })
+        .collect()
+}
+
+/// Reference line `C h^p` over `[h0, h1]`: `C` from the first series'
+/// positive error at its smallest spacing.
+fn reference(fig: &ConvergeFigure, (h0, h1): (f64, f64)) -> Option<[Pt; 2]> {
+    let s = fig.series.first()?;
+    let (h, e) = fig
+        .h
+        .iter()
+        .zip(&s.error)
+        .filter(|(h, e)| **e > 0.0 && **h >= h0 && **h <= h1)
+        .min_by(|a, b| a.0.total_cmp(b.0))?;
+    let c = REFERENCE_OFFSET * e / h.powf(fig.order);
+    Some([(h0, c * h0.powf(fig.order)), (h1, c * h1.powf(fig.order))])
+}
+
+/// Writes an integer exponent with Unicode superscript digits.
+fn superscript(k: i32) -> String {
+    k.to_string()
+        .chars()
+        .map(|c| match c {
+            '-' => '⁻',
+            '0' => '⁰',
+            '1' => '¹',
+            '2' => '²',
+            '3' => '³',
+            '4' => '⁴',
+            '5' => '⁵',
+            '6' => '⁶',
+            '7' => '⁷',
+            '8' => '⁸',
+            _ => '⁹',
+        })
+        .collect()
+}
+
+/// Ticks of a log axis over `[lo, hi]`: labelled ticks at powers of ten
+/// (and at 2 and 5 times them when the range spans under 2.5 decades) and
+/// unlabelled minor ticks at the other integer multiples. Powers beyond
+/// 10^-3..10^4 are written `10ᵏ`.
+fn log_ticks(lo: f64, hi: f64) -> (Vec<(f64, String)>, Vec<f64>) {
+    let (mut major, mut minor) = (Vec::new(), Vec::new());
+    if !(lo > 0.0 && hi > lo && lo.is_finite() && hi.is_finite()) {
+        return (major, minor);
+    }
+    let few = (hi / lo).log10() < 2.5;
+    let (k0, k1) = (lo.log10().floor() as i32, hi.log10().ceil() as i32);
+    for k in k0..=k1 {
+        let p = 10f64.powi(k);
+        for m in 1..=9 {
+            let v = f64::from(m) * p;
+            if v < lo * (1.0 - 1e-12) || v > hi * (1.0 + 1e-12) {
+                continue;
+            }
+            if m == 1 {
+                let s = if (-3..=4).contains(&k) {
+                    nice(v)
+                } else {
+                    format!("10{}", superscript(k))
+                };
+                major.push((v, s));
+            } else if few && (m == 2 || m == 5) {
+                major.push((v, nice(v)));
+            } else {
+                minor.push(v);
+            }
+        }
+    }
+    (major, minor)
+}
+
+/// Draws outward ticks and labels of both log axes of the chart.
+fn log_axis_marks<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    to_px: &dyn Fn(Pt) -> (i32, i32),
+    (xt, yt): (&LogTicks, &LogTicks),
+    (h0, e0): (f64, f64),
+    style: &Style,
+    px: &Px,
+) -> Result<(), PlotError> {
+    let ink = style.ink.rgb().stroke_width(px.thin);
+    let long = px.pt(3.0);
+    let short = px.pt(1.8);
+    let gap = px.pt(2.5);
+    let xfont = text(px, style, 1.0).pos(Pos::new(HPos::Center, VPos::Top));
+    let yfont = text(px, style, 1.0).pos(Pos::new(HPos::Right, VPos::Center));
+    let tick = |a: (i32, i32), c: (i32, i32)| PathElement::new(vec![a, c], ink);
+    for (v, s) in &xt.0 {
+        let (x, y) = to_px((*v, e0));
+        root.draw(&tick((x, y), (x, y + long))).map_err(draw_err)?;
+        root.draw(&Text::new(s.clone(), (x, y + long + gap), xfont.clone()))
+            .map_err(draw_err)?;
+    }
+    for v in &xt.1 {
+        let (x, y) = to_px((*v, e0));
+        root.draw(&tick((x, y), (x, y + short))).map_err(draw_err)?;
+    }
+    for (v, s) in &yt.0 {
+        let (x, y) = to_px((h0, *v));
+        root.draw(&tick((x - long, y), (x, y))).map_err(draw_err)?;
+        root.draw(&Text::new(s.clone(), (x - long - gap, y), yfont.clone()))
+            .map_err(draw_err)?;
+    }
+    for v in &yt.1 {
+        let (x, y) = to_px((h0, *v));
+        root.draw(&tick((x - short, y), (x, y))).map_err(draw_err)?;
+    }
+    Ok(())
+}
+
+/// Labelled and minor ticks of a log axis.
+type LogTicks = (Vec<(f64, String)>, Vec<f64>);
+
+/// Draws the figure on `root`.
+pub(super) fn draw<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    fig: &ConvergeFigure,
+    style: &Style,
+    px: &Px,
+) -> Result<(), PlotError> {
+    let (h0, h1) = match style.x_window {
+        Some((a, c)) => {
+            if a <= 0.0 {
+                return Err(PlotError::BadStyle(format!(
+                    "spacing window ({a}, {c}) must be positive on a log axis"
+                )));
+            }
+            (a, c)
+        }
+        None => {
+            let (a, c) =
+                extent(fig.h.iter().copied()).ok_or_else(|| PlotError::Empty("spacings".into()))?;
+            (a / 1.3, c * 1.3)
+        }
+    };
+    let errs: Vec<f64> = fig
+        .series
+        .iter()
+        .flat_map(|s| {
+            fig.h
+                .iter()
+                .zip(&s.error)
+                .filter(|(h, e)| **e > 0.0 && **h >= h0 && **h <= h1)
+                .map(|(_, e)| *e)
+        })
+        .collect();
+    let (e0, e1) = extent(errs.iter().copied()).ok_or_else(|| {
+        PlotError::NoDataInWindow(format!("no positive error at spacings inside ({h0}, {h1})"))
+    })?;
+    let reference = reference(fig, (h0, h1));
+    let (e0, e1) = match reference {
+        Some([a, _]) => (e0.min(a.1.max(e0 / 1e3)), e1),
+        None => (e0, e1),
+    };
+    let (e0, e1) = (e0 / 2.5, e1 * 2.5);
+    let (h0, h1) = usable("spacing", (h0, h1))?;
+    let (e0, e1) = usable("error", (e0, e1))?;
+    let b = Bounds {
+        x0: h0,
+        x1: h1,
+        y0: e0,
+        y1: e1,
+    };
+
+    let (_, bottom) = label_areas(px);
+    let m = (px.font * 0.9) as u32;
+    let xt = log_ticks(h0, h1);
+    let yt = log_ticks(e0, e1);
+    let font = text(px, style, 1.0);
+    let widest =
+        yt.0.iter()
+            .filter_map(|(_, s)| root.estimate_text_size(s, &font).ok())
+            .map(|(w, _)| w)
+            .max()
+            .unwrap_or((px.font * 2.0) as u32);
+    let left = (f64::from(widest) * 1.1 + px.font * 2.1) as u32;
+    let mut chart = ChartBuilder::on(root)
+        .margin(m)
+        .margin_right(px.pt(14.0))
+        .x_label_area_size(bottom)
+        .y_label_area_size(left)
+        .build_cartesian_2d((h0..h1).log_scale(), (e0..e1).log_scale())
+        .map_err(draw_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_labels(0)
+        .y_labels(0)
+        .set_all_tick_mark_size(0)
+        .x_label_formatter(&|_| String::new())
+        .y_label_formatter(&|_| String::new())
+        .axis_style(style.ink.rgb().stroke_width(px.thin))
+        .axis_desc_style(text(px, style, 1.0))
+        .x_desc(titled("spacing h", &fig.h_unit))
+        .y_desc(titled("|error|", &fig.error_unit))
+        .draw()
+        .map_err(draw_err)?;
+    outline(&chart.plotting_area().strip_coord_spec(), px, style)?;
+    log_axis_marks(
+        root,
+        &|p| chart.backend_coord(&p),
+        (&xt, &yt),
+        (h0, e0),
+        style,
+        px,
+    )?;
+
+    if let Some(line) = reference {
+        let ink = style.ink.rgb().stroke_width(px.thin);
+        for piece in clip_log(&line, &b) {
+            chart
+                .draw_series(DashedLineSeries::new(
+                    piece.clone(),
+                    px.pt(5.0),
+                    px.pt(3.5),
+                    ink,
+                ))
+                .map_err(draw_err)?;
+            let mid = (
+                (piece[0].0 * piece[piece.len() - 1].0).sqrt(),
+                (piece[0].1 * piece[piece.len() - 1].1).sqrt(),
+            );
+            let (x, y) = chart.backend_coord(&mid);
+            let st = text(px, style, 0.9).pos(Pos::new(HPos::Left, VPos::Top));
+            root.draw(&Text::new(
+                format!("slope {}", nice(fig.order)),
+                (x + px.pt(3.0), y + (px.font * 0.6) as i32),
+                st,
+            ))
+            .map_err(draw_err)?;
+        }
+    }
+
+    let r = px.pt(2.6);
+    for (j, s) in fig.series.iter().enumerate() {
+        let colour = style.series(j).rgb();
+        let mut pts: Vec<Pt> = fig
+            .h
+            .iter()
+            .copied()
+            .zip(s.error.iter().copied())
+            .filter(|p| p.1 > 0.0)
+            .collect();
+        pts.sort_by(|a, c| a.0.total_cmp(&c.0));
+        let st = colour.stroke_width(px.line);
+        for piece in clip_log(&pts, &b) {
+            chart
+                .draw_series(std::iter::once(PathElement::new(piece, st)))
+                .map_err(draw_err)?;
+        }
+        let w = px.pt(14.0);
+        chart
+            .draw_series(
+                pts.into_iter()
+                    .filter(|p| b.contains(*p))
+                    .map(|p| Circle::new(p, r, colour.filled())),
+            )
+            .map_err(draw_err)?
+            .label(s.label.clone())
+            .legend(move |(x, y)| PathElement::new(vec![(x - w / 2, y), (x + w / 2, y)], st));
+    }
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::LowerRight)
+        .margin(px.pt(6.0))
+        .legend_area_size(px.pt(16.0))
+        .label_font(text(px, style, 0.9))
+        .border_style(style.ink.rgb().stroke_width(px.thin))
+        .background_style(WHITE)
+        .draw()
+        .map_err(draw_err)?;
+    Ok(())
+}
+
+#[cfg(test)]
+pub(super) fn sample() -> ConvergeFigure {
+    // Second-order scheme: error = c_n h^2 with c_n = 0.01 n^2 (synthetic).
+    let h: Vec<f64> = vec![0.4, 0.2, 0.1, 0.05, 0.025];
+    let series = (1..=3)
+        .map(|n| ErrorSeries {
+            label: format!("n = {n}"),
+            error: h.iter().map(|h| 0.01 * (n * n) as f64 * h * h).collect(),
+        })
+        .collect();
+    ConvergeFigure::new(h, series, 2.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plot::testkit::{count, render_both, stroked};
+    use crate::plot::Figure;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn reference_has_order_slope() {
+        let f = sample();
+        let [a, c] = reference(&f, (0.01, 1.0)).unwrap();
+        // Slope in log space equals the order (closed form).
+        let slope = (c.1.log10() - a.1.log10()) / (c.0.log10() - a.0.log10());
+        assert_relative_eq!(slope, 2.0, max_relative = 1e-12);
+        // Anchored 0.4 below n = 1 at h = 0.025: 0.4 * 0.01 * 0.025^2.
+        let at = 0.4 * 0.01 * 0.025f64.powi(2);
+        assert_relative_eq!(a.1 * (0.025f64 / 0.01).powi(2), at, max_relative = 1e-12);
+    }
+
+    #[test]
+    fn log_tick_choice() {
+        // Worked out by hand for 0.019..0.52 (under 2.5 decades).
+        let (major, minor) = log_ticks(0.019, 0.52);
+        let v: Vec<f64> = major.iter().map(|m| m.0).collect();
+        let expect = [0.02, 0.05, 0.1, 0.2, 0.5];
+        assert_eq!(v.len(), expect.len());
+        for (a, b) in v.iter().zip(expect) {
+            assert_relative_eq!(*a, b, max_relative = 1e-12);
+        }
+        // Minor: 0.03, 0.04, 0.06, 0.07, 0.08, 0.09, 0.3, 0.4.
+        assert_eq!(minor.len(), 8);
+        let (major, _) = log_ticks(1e-7, 1e-2);
+        let s: Vec<&str> = major.iter().map(|m| m.1.as_str()).collect();
+        assert_eq!(s, ["10⁻⁷", "10⁻⁶", "10⁻⁵", "10⁻⁴", "0.001", "0.01"]);
+    }
+
+    #[test]
+    fn renders_series() {
+        let style = Style::default();
+        let svg = render_both(&Figure::Converge(sample()), &style, "converge");
+        for j in 0..3 {
+            let c = style.series(j).hex();
+            assert_eq!(count(&svg, "circle", "fill", &c), 5);
+            // One data line plus its legend swatch.
+            assert_eq!(stroked(&svg, &c).len(), 2);
+        }
+    }
+
+    #[test]
+    fn skips_zero_errors_and_rejects_bad() {
+        let mut f = sample();
+        f.series[0].error[4] = 0.0;
+        let style = Style::default();
+        let svg = render_both(&Figure::Converge(f), &style, "converge_zero");
+        assert_eq!(count(&svg, "circle", "fill", &style.series(0).hex()), 4);
+        let mut f = sample();
+        f.h[0] = 0.0;
+        assert!(f.validate().is_err());
+        let mut f = sample();
+        f.order = f64::NAN;
+        assert!(f.validate().is_err());
+        let style = Style {
+            x_window: Some((5.0, 10.0)),
+            ..Style::default()
+        };
+        let r = crate::plot::render_svg(&Figure::Converge(sample()), &style);
+        assert!(matches!(r, Err(PlotError::NoDataInWindow(_))));
+    }
+}
