@@ -112,6 +112,33 @@ enum Command {
         #[command(flatten)]
         plot: PlotArgs,
     },
+    /// Energy bands of the infinite chain: one cell with the Bloch condition.
+    #[command(
+        after_help = "Examples:\n  chainwell bands potentials/polymer_cell.toml\n  chainwell bands potentials/polymer_cell.toml --finite 5:41:4 --json\n  chainwell bands potentials/polymer_cell.toml --kpoints 81 --csv bands.csv"
+    )]
+    Bands {
+        /// The input file (TOML): a [domain] is one cell; a [chain] gives its two-bond repeat unit.
+        input: PathBuf,
+        /// Override an input value: KEY=VALUE (e.g. chain.alternation=1.2).
+        #[arg(long = "set", value_name = "KEY=VALUE")]
+        set: Vec<String>,
+        /// Wavevectors from 0 to pi/period (at least 2).
+        #[arg(long, default_value_t = commands::bands::DEFAULT_KPOINTS)]
+        kpoints: usize,
+        /// Print one JSON document on stdout.
+        #[arg(long)]
+        json: bool,
+        /// Also write the bands as CSV (one row per k and band) to FILE.
+        #[arg(long, value_name = "FILE")]
+        csv: Option<PathBuf>,
+        /// Lay finite chains of these bond counts beside the band edges:
+        /// START:STOP[:STEP] or N1,N2,...
+        #[arg(long, value_name = "BONDS")]
+        finite: Option<String>,
+        /// Leave timings out of the JSON, so that runs compare byte for byte.
+        #[arg(long)]
+        no_timing: bool,
+    },
 }
 
 fn run(cli: Cli) -> Result<(), CommandError> {
@@ -151,6 +178,29 @@ fn run(cli: Cli) -> Result<(), CommandError> {
                 figure: plot.options(),
             };
             print_stdout(&commands::converge::run(&input, &opts)?)
+        }
+        Command::Bands {
+            input,
+            set,
+            kpoints,
+            json,
+            csv,
+            finite,
+            no_timing,
+        } => {
+            let opts = commands::bands::BandsOptions {
+                overrides: commands::parse_overrides(&set)?,
+                kpoints,
+                json,
+                csv,
+                finite,
+                no_timing,
+            };
+            let (out, warnings) = commands::bands::run(&input, &opts)?;
+            for w in warnings {
+                eprintln!("warning: {w}");
+            }
+            print_stdout(&out)
         }
     }
 }

@@ -563,3 +563,27 @@ pub fn spectrum(model: &Model, sol: &Solution) -> observables::Spectrum {
     let grid = observables::default_wavelength_grid(&lines, model.spectrum.fwhm);
     observables::absorption(&lines, shape, model.spectrum.fwhm, &grid)
 }
+
+/// Dimensionless tolerance for calling two ring levels degenerate (see
+/// [`crate::bands::group_levels`]): far above the eigen-solver's round-off,
+/// far below any physical splitting worth reporting (common practice, no
+/// source).
+pub const DEGENERACY_TOLERANCE: f64 = 1e-7;
+
+/// The computed levels of a ring (periodic domain) grouped into degenerate
+/// sets, e.g. the `+-j` pairs of a free ring; `None` with hard walls. A group
+/// at the top or bottom of the computed levels may lack a partner that was
+/// not computed.
+pub fn ring_degeneracies(sol: &Solution) -> Option<Vec<crate::bands::Degeneracy>> {
+    (sol.grid.boundary == Boundary::Periodic).then(|| {
+        let energies: Vec<f64> = sol.levels.iter().map(|l| l.energy).collect();
+        let first = sol.levels.first().map_or(1, |l| l.n);
+        let mut groups = crate::bands::summarize_levels(&energies, DEGENERACY_TOLERANCE);
+        for g in &mut groups {
+            for n in &mut g.levels {
+                *n += first - 1;
+            }
+        }
+        groups
+    })
+}

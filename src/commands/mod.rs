@@ -4,6 +4,7 @@
 //! to print; the binary maps [`CommandError`] to the exit status (2 for bad
 //! input or usage, 1 for a computation that could not finish).
 
+pub mod bands;
 pub mod converge;
 pub mod figure;
 pub mod solve;

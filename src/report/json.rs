@@ -64,6 +64,24 @@ pub fn levels(model: &Model, sol: &Solution) -> Value {
     )
 }
 
+/// The `degeneracies` array of a ring: every computed level in one group
+/// (`levels` 1-based, `energy` the group's mean, `spread` its splitting).
+pub fn degeneracies(model: &Model, groups: &[crate::bands::Degeneracy]) -> Value {
+    let u = &model.units;
+    Value::Array(
+        groups
+            .iter()
+            .map(|g| {
+                json!({
+                    "levels": g.levels,
+                    "energy": u.energy_out(g.energy),
+                    "spread": u.energy_out(g.spread),
+                })
+            })
+            .collect(),
+    )
+}
+
 /// The whole `chainwell.solve/1` document. `timing` can be left out so that
 /// documents compare byte for byte across runs.
 pub fn solve_document(
@@ -93,6 +111,9 @@ pub fn solve_document(
     );
     doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));
     doc.insert("levels".into(), levels(model, sol));
+    if let Some(groups) = crate::solve::ring_degeneracies(sol) {
+        doc.insert("degeneracies".into(), degeneracies(model, &groups));
+    }
     if let Some(occ) = &sol.occupancy {
         doc.insert("occupancy".into(), occupancy(model, occ));
     }

@@ -114,6 +114,9 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             sr.levels_used, sr.value
         );
     }
+    if let Some(groups) = crate::solve::ring_degeneracies(sol) {
+        ring_note(&mut s, model, &groups);
+    }
     let _ = writeln!(s);
     let _ = writeln!(
         s,
@@ -124,4 +127,45 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
         sol.timing.solve_s
     );
     s
+}
+
+/// Plain-language lines on the degenerate levels of a ring.
+fn ring_note(s: &mut String, model: &Model, groups: &[crate::bands::Degeneracy]) {
+    let u = &model.units;
+    let degenerate: Vec<_> = groups.iter().filter(|g| g.is_degenerate()).collect();
+    let _ = writeln!(s);
+    if degenerate.is_empty() {
+        let _ = writeln!(
+            s,
+            "ring: no degenerate levels among those computed (something breaks the ring's symmetry)"
+        );
+        return;
+    }
+    let _ = writeln!(
+        s,
+        "ring: {} of the {} groups of levels are degenerate (on a ring, states running either way round share an energy):",
+        degenerate.len(),
+        groups.len()
+    );
+    for g in degenerate {
+        let list = g
+            .levels
+            .iter()
+            .map(|n| n.to_string())
+            .collect::<Vec<_>>()
+            .join(", ");
+        let _ = writeln!(
+            s,
+            "  levels {list}: {:.10} {e} (split by {:.1e} {e})",
+            u.energy_out(g.energy),
+            u.energy_out(g.spread),
+            e = u.energy.label()
+        );
+    }
+    if groups.last().is_some_and(|g| !g.is_degenerate()) && groups.len() > 1 {
+        let _ = writeln!(
+            s,
+            "  (the highest computed level may be one of a pair whose partner was not computed)"
+        );
+    }
 }
