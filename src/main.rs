@@ -138,6 +138,9 @@ enum Command {
         /// Leave timings out of the JSON, so that runs compare byte for byte.
         #[arg(long)]
         no_timing: bool,
+        /// Figure: bands (E against k, gaps shaded, finite chains beside).
+        #[command(flatten)]
+        plot: PlotArgs,
     },
 }
 
@@ -187,6 +190,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             csv,
             finite,
             no_timing,
+            plot,
         } => {
             let opts = commands::bands::BandsOptions {
                 overrides: commands::parse_overrides(&set)?,
@@ -195,6 +199,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
                 csv,
                 finite,
                 no_timing,
+                figure: plot.options(),
             };
             let (out, warnings) = commands::bands::run(&input, &opts)?;
             for w in warnings {

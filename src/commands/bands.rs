@@ -61,6 +61,8 @@ pub struct BandsOptions {
     pub finite: Option<String>,
     /// Leave timings out of the JSON.
     pub no_timing: bool,
+    /// `--plot`: the bands (E against k, gaps shaded, finite chains beside).
+    pub figure: super::figure::FigureOptions,
 }
 
 impl Default for BandsOptions {
@@ -72,6 +74,7 @@ impl Default for BandsOptions {
             csv: None,
             finite: None,
             no_timing: false,
+            figure: Default::default(),
         }
     }
 }
@@ -267,6 +270,8 @@ pub fn run(path: &Path, opts: &BandsOptions) -> Result<(String, Vec<String>), Co
             |e| CommandError::Compute(format!("cannot write {}: {e}", csv_path.display())),
         )?;
     }
+    opts.figure.kind(&["bands"])?;
+    opts.figure.render(&super::figure::bands(&model, &result))?;
     let out = if opts.json {
         let doc = bands_document(&model, &source, &result, !opts.no_timing);
         let mut s =

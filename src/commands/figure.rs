@@ -223,3 +223,37 @@ pub fn converge(model: &Model, conv: &Convergence) -> Figure {
     f.error_unit = u.energy.label().to_string();
     Figure::Converge(f)
 }
+
+/// Band structure E(k) with the gaps shaded, and the HOMO and LUMO of
+/// finite chains beside it when asked.
+pub fn bands(model: &Model, result: &super::bands::BandsResult) -> Figure {
+    let u = &model.units;
+    let per_unit = u.length.in_angstrom();
+    let k = result.structure.k.iter().map(|k| k * per_unit).collect();
+    // The bands that matter are the filled ones and the few above them; a
+    // figure of ten bands squeezes the gap into a line.
+    let shown = result
+        .filling
+        .as_ref()
+        .map_or(4, |f| f.electrons_per_cell / 2 + 3)
+        .max(4);
+    let bands = result
+        .structure
+        .bands
+        .iter()
+        .take(shown)
+        .map(|b| b.iter().map(|e| u.energy_out(*e)).collect())
+        .collect();
+    let mut f = plot::BandsFigure::new(k, bands);
+    f.chains = result
+        .finite
+        .iter()
+        .map(|c| plot::ChainLadder {
+            label: format!("{}", c.bonds),
+            energies: vec![u.energy_out(c.homo_energy), u.energy_out(c.lumo_energy)],
+        })
+        .collect();
+    f.k_unit = format!("1/{}", u.length.label());
+    f.energy_unit = u.energy.label().to_string();
+    Figure::Bands(f)
+}
