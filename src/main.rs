@@ -142,10 +142,48 @@ enum Command {
         #[command(flatten)]
         plot: PlotArgs,
     },
+    /// Write a commented input to start from (box, chain, ring, wells,
+    /// table, formula, polymer); without KIND, list them.
+    #[command(
+        after_help = "Examples:\n  chainwell starter\n  chainwell starter chain -o my_chain.toml"
+    )]
+    Starter {
+        /// The kind of system.
+        kind: Option<String>,
+        /// Write to FILE instead of stdout.
+        #[arg(short, long, value_name = "FILE")]
+        output: Option<PathBuf>,
+        /// Replace FILE if it exists.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
+    #[command(
+        after_help = "Example:\n  chainwell completions bash > ~/.local/share/bash-completion/completions/chainwell"
+    )]
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
 }
 
 fn run(cli: Cli) -> Result<(), CommandError> {
     match cli.command {
+        Command::Starter {
+            kind,
+            output,
+            force,
+        } => print_stdout(&commands::starter::run(
+            kind.as_deref(),
+            output.as_deref(),
+            force,
+        )?),
+        Command::Completions { shell } => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            let mut buf = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "chainwell", &mut buf);
+            print_stdout(&String::from_utf8_lossy(&buf))
+        }
         Command::Solve {
             input,
             set,

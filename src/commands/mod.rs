@@ -8,6 +8,7 @@ pub mod bands;
 pub mod converge;
 pub mod figure;
 pub mod solve;
+pub mod starter;
 
 use crate::input::InputError;
 
