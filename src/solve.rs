@@ -115,6 +115,17 @@ pub enum SolveError {
         /// Fewest unknowns that work.
         needed: usize,
     },
+    /// The solve would need more memory than [`MEMORY_LIMIT_BYTES`] (a
+    /// computation that cannot finish here).
+    #[error("a grid of {points} points with {levels} levels would need about {:.1} GiB, above the limit of {:.0} GiB; lower grid.points (or raise grid.spacing) or levels.count", .bytes / GIB, MEMORY_LIMIT_BYTES / GIB)]
+    TooLarge {
+        /// Unknowns of the grid.
+        points: usize,
+        /// Levels asked for (at most `points`).
+        levels: usize,
+        /// The estimate, bytes.
+        bytes: f64,
+    },
     /// The electrons cannot be placed in the computed levels (bad input).
     #[error(transparent)]
     Occupancy(#[from] OccupancyError),
@@ -127,8 +138,29 @@ impl SolveError {
     /// Whether the fault lies in the input (exit status 2) rather than in a
     /// computation that could not finish (exit status 1).
     pub fn is_input_error(&self) -> bool {
-        !matches!(self, SolveError::Eigen(e) if !matches!(e, EigenError::SelectionOutOfRange { .. }))
+        match self {
+            SolveError::TooLarge { .. } => false,
+            SolveError::Eigen(e) => matches!(e, EigenError::SelectionOutOfRange { .. }),
+            _ => true,
+        }
     }
+}
+
+const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
+
+/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
+/// machines chainwell is tested on, so that a mistyped `grid.points` is
+/// refused at once instead of exhausting the machine.
+pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
+
+/// Estimated bytes of a solve on `points` unknowns with a stencil of
+/// half-width `half_width` and `levels` levels: the banded matrix
+/// (`half_width + 1` diagonals), one vector per level, and four work
+/// vectors (positions, potential, two for the eigen-solver), in `f64`:
+/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
+/// so that it cannot overflow.
+pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
+    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
 }
 
 /// The grid a model asks for. A tolerance is resolved by the refinement of
@@ -161,6 +193,18 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             points: grid.points,
             order: model.grid.order.get(),
             needed,
+        });
+    }
+    let levels_wanted = match model.levels.below {
+        Some(_) => grid.points,
+        None => model.levels.count.min(grid.points),
+    };
+    let bytes = memory_estimate(grid.points, p, levels_wanted);
+    if bytes > MEMORY_LIMIT_BYTES {
+        return Err(SolveError::TooLarge {
+            points: grid.points,
+            levels: levels_wanted,
+            bytes,
         });
     }
     let x = grid.positions();

@@ -32,12 +32,7 @@ struct Case {
     key: &'static str,
 }
 
-const fn case(
-    name: &'static str,
-    toml: &'static str,
-    at: &'static str,
-    key: &'static str,
-) -> Case {
+const fn case(name: &'static str, toml: &'static str, at: &'static str, key: &'static str) -> Case {
     Case {
         name,
         toml: toml.as_bytes(),
@@ -141,6 +136,7 @@ const CASES: &[Case] = &[
     case("formula_nan_on_part_of_the_grid", concat!(domain!(), "[[term]]\nshape = \"formula\"\nexpression = \"sqrt(x - 5)\"\n"), "in.toml:7:9", "term[1]"),
     case("formula_overflows", concat!(domain!(), "[[term]]\nshape = \"formula\"\nexpression = \"exp(100 * x)\"\n"), "in.toml:7:9", "term[1]"),
     case("formula_constant_reserved_name", concat!(domain!(), "[[term]]\nshape = \"formula\"\nexpression = \"x\"\n[term.constants]\nsin = 2.0\n"), "in.toml:10:7", "term[1].constants.sin"),
+    case("terms_sum_to_infinity", concat!(domain!(), "[[term]]\nshape = \"step\"\nfrom = 0.0\nto = 10.0\nheight = 1e308\n[[term]]\nshape = \"step\"\nfrom = 0.0\nto = 10.0\nheight = 1e308\n"), "in.toml:12:9", "term[2]"),
     // --- tables ---
     with_csv(case("table_unsorted_x", table!("linear"), "data.csv:4:1", "term[1].file"), "data.csv", b"x,V\n0,1\n2,1\n1,1\n"),
     with_csv(case("table_duplicate_x", table!("linear"), "data.csv:3:1", "term[1].file"), "data.csv", b"x,V\n0,1\n0,2\n1,1\n"),
@@ -264,4 +260,36 @@ fn every_bad_input_is_refused_with_its_location_and_key() {
         CASES.len(),
         failures.join("\n")
     );
+}
+
+/// A grid too large for memory is refused at once (exit 1, a computation
+/// that cannot be done here) rather than exhausting the machine.
+#[test]
+fn oversized_grids_are_refused_before_allocating() {
+    let root = std::env::temp_dir().join(format!("chainwell-huge-{}", std::process::id()));
+    std::fs::create_dir_all(&root).unwrap();
+    let input = root.join("in.toml");
+    std::fs::write(&input, "[domain]\nfrom = 0.0\nto = 10.0\n").unwrap();
+    for set in [
+        "grid.points=2000000000",
+        "grid.spacing=1e-12",
+        "grid.points=9223372036854775807",
+    ] {
+        let out = Command::new(bin())
+            .current_dir(&root)
+            .args(["solve", "--json", "--set", set])
+            .arg(&input)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(1), "{set}: {err}");
+        assert!(
+            err.starts_with("error: ") && err.contains("GiB"),
+            "{set}: {err}"
+        );
+        assert!(err.contains("grid.points"), "{set}: {err}");
+        assert!(out.stdout.is_empty(), "{set}");
+    }
+    assert_eq!(std::fs::read_dir(&root).unwrap().count(), 1);
+    std::fs::remove_dir_all(&root).unwrap();
 }
