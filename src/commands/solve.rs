@@ -52,7 +52,9 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
             }
         }
         SolveError::GridTooSmall { .. } => at("grid.points", "grid"),
-        SolveError::TooLarge { .. } => CommandError::Compute(e.to_string()),
+        SolveError::TooLarge { .. }
+        | SolveError::IllConditioned { .. }
+        | SolveError::NotConverged { .. } => CommandError::Compute(e.to_string()),
         SolveError::Eigen(_) if e.is_input_error() => at("levels", "levels"),
         SolveError::Eigen(_) => CommandError::Compute(e.to_string()),
     }

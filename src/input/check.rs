@@ -774,7 +774,9 @@ impl<'a> Checker<'a> {
                 _ => None,
             };
             match constant {
-                Some((name, span)) => self.err(span, &format!("{key}.constants.{name}"), e.to_string()),
+                Some((name, span)) => {
+                    self.err(span, &format!("{key}.constants.{name}"), e.to_string())
+                }
                 None => self.err(at, &format!("{key}.expression"), e.to_string()),
             }
         })?;
