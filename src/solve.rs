@@ -129,10 +129,12 @@ pub enum SolveError {
     /// Rounding in a matrix of this norm blurs every energy by more than the
     /// domain's lowest kinetic energy: no level can be told from the next (a
     /// computation that cannot finish).
-    #[error("the potential spans {vmin:.3e}..{vmax:.3e} eV and makes the matrix's norm {norm:.3e} eV: rounding blurs every energy by about {rounding:.3e} eV, more than the domain's lowest box level ({scale:.3e} eV), so no level can be told from the next; subtract a constant from the potential or make it shallower")]
+    #[error("the matrix's norm is {norm:.3e} eV (the potential spans {vmin:.3e}..{vmax:.3e} eV, the kinetic term reaches {kinetic:.3e} eV on this grid): rounding blurs every energy by about {rounding:.3e} eV, more than the domain's lowest box level ({scale:.3e} eV), so no level can be told from the next; subtract a constant from the potential, make it shallower, or use a coarser grid on a longer domain")]
     IllConditioned {
         /// `||H||_1`, eV.
         norm: f64,
+        /// `hbar^2 / (2 m h^2)` for the grid's spacing `h`, eV.
+        kinetic: f64,
         /// The rounding level [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
         rounding: f64,
         /// `hbar^2/2m (pi / L)^2` for the domain's length `L`, eV.
@@ -249,10 +251,12 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     let norm = norm1(&disc.a);
     let rounding = ROUNDING_FACTOR * f64::EPSILON * norm;
     let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
-    // NaN (from an infinite norm) must be refused too.
-    if rounding.is_nan() || rounding > scale {
+    // An infinite norm (a spacing so small that 1/h^2 overflows) must be
+    // refused too.
+    if !rounding.is_finite() || rounding > scale {
         return Err(SolveError::IllConditioned {
             norm,
+            kinetic: model.kinetic() / (grid.spacing * grid.spacing),
             rounding,
             scale,
             vmin,

@@ -113,6 +113,7 @@ const CASES: &[Case] = &[
     case("zero_site_width", "[chain]\nbonds = 4\n[[chain.site]]\natom = 2\nheight = -1.0\nwidth = 0.0\n", "in.toml:6:9", "chain.site[1].width"),
     // --- from >= to ---
     case("domain_to_equals_from", "[domain]\nfrom = 5.0\nto = 5.0\n", "in.toml:3:6", "domain.to"),
+    case("domain_length_overflows", "[domain]\nfrom = -1e308\nto = 1e308\n", "in.toml:3:6", "domain.to"),
     case("domain_to_below_from", "[domain]\nfrom = 5.0\nto = -5.0\n", "in.toml:3:6", "domain.to"),
     case("step_to_below_from", concat!(domain!(), "[[term]]\nshape = \"step\"\nfrom = 3.0\nto = 2.0\nheight = 1.0\n"), "in.toml:9:6", "term[1].to"),
     case("ripple_window_reversed", concat!(domain!(), "[[term]]\nshape = \"ripple\"\namplitude = 1.0\nperiod = 2.0\nfrom = 3.0\nto = 3.0\n"), "in.toml:11:6", "term[1].to"),
@@ -291,5 +292,33 @@ fn oversized_grids_are_refused_before_allocating() {
         assert!(out.stdout.is_empty(), "{set}");
     }
     assert_eq!(std::fs::read_dir(&root).unwrap().count(), 1);
+    std::fs::remove_dir_all(&root).unwrap();
+}
+
+/// A domain so short that `1/h^2` overflows is refused as a computation that
+/// cannot be done (exit 1), not answered with NaN.
+#[test]
+fn a_domain_too_short_to_compute_on_is_refused() {
+    let root = std::env::temp_dir().join(format!("chainwell-short-{}", std::process::id()));
+    std::fs::create_dir_all(&root).unwrap();
+    let input = root.join("in.toml");
+    std::fs::write(
+        &input,
+        "[domain]\nfrom = 0.0\nto = 1e-300\n[grid]\npoints = 40\n",
+    )
+    .unwrap();
+    let out = Command::new(bin())
+        .current_dir(&root)
+        .args(["solve", "--json"])
+        .arg(&input)
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "{err}");
+    assert!(
+        err.contains("rounding") && err.contains("coarser grid"),
+        "{err}"
+    );
+    assert!(out.stdout.is_empty());
     std::fs::remove_dir_all(&root).unwrap();
 }

@@ -255,6 +255,13 @@ impl<'a> Checker<'a> {
                 ),
             ));
         }
+        if !(b - a).is_finite() {
+            return Err(self.err(
+                to.span(),
+                "domain.to",
+                "the domain's length overflows: from and to are too far apart to compute with",
+            ));
+        }
         let boundary = match &raw.boundary {
             None => Boundary::Walls,
             Some(b) => match b.get_ref().as_str() {
