@@ -135,6 +135,45 @@ pub enum SolveError {
         /// Fewest unknowns that work.
         needed: usize,
     },
+    /// The solve would need more memory than [`MEMORY_LIMIT_BYTES`] (a
+    /// computation that cannot finish here).
+    #[error("a grid of {points} points with {levels} levels would need about {:.1} GiB, above the limit of {:.0} GiB; lower grid.points (or raise grid.spacing) or levels.count", .bytes / GIB, MEMORY_LIMIT_BYTES / GIB)]
+    TooLarge {
+        /// Unknowns of the grid.
+        points: usize,
+        /// Levels asked for (at most `points`).
+        levels: usize,
+        /// The estimate, bytes.
+        bytes: f64,
+    },
+    /// Rounding in a matrix of this norm blurs every energy by more than the
+    /// domain's lowest kinetic energy: no level can be told from the next (a
+    /// computation that cannot finish).
+    #[error("the matrix's norm is {norm:.3e} eV (the potential spans {vmin:.3e}..{vmax:.3e} eV, the kinetic term reaches {kinetic:.3e} eV on this grid): rounding blurs every energy by about {rounding:.3e} eV, more than the domain's lowest box level ({scale:.3e} eV), so no level can be told from the next; subtract a constant from the potential, make it shallower, or use a coarser grid on a longer domain")]
+    IllConditioned {
+        /// `||H||_1`, eV.
+        norm: f64,
+        /// `hbar^2 / (2 m h^2)` for the grid's spacing `h`, eV.
+        kinetic: f64,
+        /// The rounding level [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+        rounding: f64,
+        /// `hbar^2/2m (pi / L)^2` for the domain's length `L`, eV.
+        scale: f64,
+        /// Lowest value of the potential on the grid, eV.
+        vmin: f64,
+        /// Highest value of the potential on the grid, eV.
+        vmax: f64,
+    },
+    /// The eigen-solver returned a pair that is not an eigenpair to working
+    /// precision (a computation that could not finish).
+    #[error("level {level} did not converge: its residual reached {residual:.3e} times eps ||H|| N (at most {RESIDUAL_LIMIT:.0e} is accepted)")]
+    NotConverged {
+        /// The level (1-based).
+        level: usize,
+        /// Its residual ratio `||H z - E z||_1 / (||H||_1 N eps)` (for the
+        /// Numerov pair, `||K z - E M z||_1 / ((||K||_1 + |E| ||M||_1) N eps)`).
+        residual: f64,
+    },
     /// The electrons cannot be placed in the computed levels (bad input).
     #[error(transparent)]
     Occupancy(#[from] OccupancyError),
@@ -161,8 +200,31 @@ impl SolveError {
     /// Whether the fault lies in the input (exit status 2) rather than in a
     /// computation that could not finish (exit status 1).
     pub fn is_input_error(&self) -> bool {
-        !matches!(self, SolveError::Eigen(e) if !matches!(e, EigenError::SelectionOutOfRange { .. }))
+        match self {
+            SolveError::TooLarge { .. }
+            | SolveError::IllConditioned { .. }
+            | SolveError::NotConverged { .. } => false,
+            SolveError::Eigen(e) => matches!(e, EigenError::SelectionOutOfRange { .. }),
+            _ => true,
+        }
     }
+}
+
+const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
+
+/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
+/// machines chainwell is tested on, so that a mistyped `grid.points` is
+/// refused at once instead of exhausting the machine.
+pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
+
+/// Estimated bytes of a solve on `points` unknowns with a stencil of
+/// half-width `half_width` and `levels` levels: the banded matrix
+/// (`half_width + 1` diagonals), one vector per level, and four work
+/// vectors (positions, potential, two for the eigen-solver), in `f64`:
+/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
+/// so that it cannot overflow.
+pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
+    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
 }
 
 /// The number of steps across the domain a model asks for (before
@@ -293,6 +355,18 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             needed,
         });
     }
+    let levels_wanted = match model.levels.below {
+        Some(_) => grid.points,
+        None => model.levels.count.min(grid.points),
+    };
+    let bytes = memory_estimate(grid.points, p, levels_wanted);
+    if bytes > MEMORY_LIMIT_BYTES {
+        return Err(SolveError::TooLarge {
+            points: grid.points,
+            levels: levels_wanted,
+            bytes,
+        });
+    }
     let x = grid.positions();
     let edges = interior_edges(model);
     let v = model
@@ -305,6 +379,23 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         model.grid.order,
         model.grid.scheme,
     );
+    let vmin = v.iter().copied().fold(f64::INFINITY, f64::min);
+    let vmax = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let norm = norm1(&disc.a);
+    let rounding = ROUNDING_FACTOR * f64::EPSILON * norm;
+    let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
+    // An infinite norm (a spacing so small that 1/h^2 overflows) must be
+    // refused too.
+    if !rounding.is_finite() || rounding > scale {
+        return Err(SolveError::IllConditioned {
+            norm,
+            kinetic: model.kinetic() / (grid.spacing * grid.spacing),
+            rounding,
+            scale,
+            vmin,
+            vmax,
+        });
+    }
     let selection = match model.levels.below {
         Some(energy) => Selection::Below { energy },
         None => {
@@ -329,6 +420,15 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     let t0 = Instant::now();
     let (pairs, info) = eigen::solve(&problem, &selection, params)?;
     let solve_s = t0.elapsed().as_secs_f64();
+    for (j, (energy, vector)) in pairs.values.iter().zip(&pairs.vectors).enumerate() {
+        let residual = residual_ratio(&disc.a, disc.b.as_ref(), *energy, vector);
+        if residual.is_nan() || residual > RESIDUAL_LIMIT {
+            return Err(SolveError::NotConverged {
+                level: pairs.first + j + 1,
+                residual,
+            });
+        }
+    }
 
     let h = grid.spacing;
     let box_length = model.domain.length();
@@ -403,6 +503,7 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         positions: edges,
     };
     let mut warnings = warnings(model, grid, &v, &levels);
+    warnings.extend(precision_warnings(model, grid, &levels, rounding, scale));
     if !edge_report.aligned {
         warnings.push(format!(
             "the potential jumps at x = {:?} between grid points: levels then converge at low, erratic order and error estimates are unreliable; put the jumps at simple fractions of the domain",
@@ -586,4 +687,238 @@ pub fn ring_degeneracies(sol: &Solution) -> Option<Vec<crate::bands::Degeneracy>
         }
         groups
     })
+}
+
+/// Energies are blurred by rounding by about `ROUNDING_FACTOR * eps *
+/// ||H||_1`: LAPACK's error bounds for computed symmetric eigenvalues are of
+/// the form `p(n) eps ||H||` with a modestly growing `p(n)` (E. Anderson et
+/// al., *LAPACK Users' Guide*, 3rd ed., SIAM 1999, sec. 4.7); 10 is a
+/// common practice, no source.
+pub const ROUNDING_FACTOR: f64 = 10.0;
+
+/// Largest residual ratio `||H z - E z||_1 / (||H||_1 N eps)` accepted for a
+/// returned eigenpair. LAPACK's tests fail a routine above 30 (the DSTT21
+/// threshold); a pair that did not converge is many orders above that. 1e4
+/// leaves a wide margin (common practice, no source).
+pub const RESIDUAL_LIMIT: f64 = 1e4;
+
+/// Rounding, relative to the domain's lowest box level, above which the
+/// energies' last digits are flagged as noise (common practice, no source).
+pub const ROUNDING_WARNING: f64 = 1e-6;
+
+/// Two adjacent levels closer than this many times the rounding level are
+/// treated as degenerate: their eigenvectors may be any mixture of the two
+/// (the angle of an eigenvector's error is about rounding / gap; Davis and
+/// Kahan, SIAM J. Numer. Anal. 7, 1 (1970)).
+pub const DEGENERATE_FACTOR: f64 = 1e3;
+
+/// `y = M x` for a symmetric banded matrix, reading its bands exactly as
+/// [`SymBanded::to_dense`](crate::eigen::SymBanded::to_dense) does.
+fn banded_mul(m: &eigen::SymBanded, x: &[f64]) -> Vec<f64> {
+    let n = m.n;
+    let mut y = vec![0.0; n];
+    for (d, band) in m.bands.iter().enumerate() {
+        for (i, &a) in band.iter().enumerate() {
+            let j = if m.wrap { (i + d) % n } else { i + d };
+            if j >= n {
+                continue;
+            }
+            y[i] += a * x[j];
+            if d > 0 {
+                y[j] += a * x[i];
+            }
+        }
+    }
+    y
+}
+
+/// `||M||_1`, the largest absolute column sum of a symmetric banded matrix.
+fn norm1(m: &eigen::SymBanded) -> f64 {
+    let n = m.n;
+    let mut sums = vec![0.0f64; n];
+    for (d, band) in m.bands.iter().enumerate() {
+        for (i, &a) in band.iter().enumerate() {
+            let j = if m.wrap { (i + d) % n } else { i + d };
+            if j >= n {
+                continue;
+            }
+            sums[i] += a.abs();
+            if d > 0 {
+                sums[j] += a.abs();
+            }
+        }
+    }
+    sums.into_iter().fold(0.0, f64::max)
+}
+
+/// The residual ratio of one returned pair (see [`RESIDUAL_LIMIT`]); NaN or
+/// infinite when the pair holds a value that is not finite.
+fn residual_ratio(
+    a: &eigen::SymBanded,
+    b: Option<&eigen::SymBanded>,
+    energy: f64,
+    z: &[f64],
+) -> f64 {
+    let az = banded_mul(a, z);
+    let (bz, scale) = match b {
+        Some(b) => (banded_mul(b, z), norm1(a) + energy.abs() * norm1(b)),
+        None => (z.to_vec(), norm1(a)),
+    };
+    let r: f64 = az
+        .iter()
+        .zip(&bz)
+        .map(|(p, q)| (p - energy * q).abs())
+        .sum();
+    let length = z.iter().map(|x| x * x).sum::<f64>().sqrt();
+    r / (scale.max(f64::MIN_POSITIVE) * z.len() as f64 * f64::EPSILON * length)
+}
+
+/// Warnings about rounding: energies whose last digits are noise, and
+/// adjacent levels that rounding cannot tell apart. Degenerate pairs are
+/// expected on a ring (the two directions of travel) and not flagged there.
+fn precision_warnings(
+    model: &Model,
+    grid: &Grid,
+    levels: &[Level],
+    rounding: f64,
+    scale: f64,
+) -> Vec<String> {
+    let mut out = Vec::new();
+    let unit = model.units.energy.label();
+    if rounding > ROUNDING_WARNING * scale {
+        out.push(format!(
+            "rounding limits the energies to about ±{:.1e} {unit} (the matrix's norm is large: a deep or high potential, or a very fine grid); digits beyond that are noise",
+            model.units.energy_out(rounding)
+        ));
+    }
+    if grid.boundary == Boundary::Walls {
+        for pair in levels.windows(2) {
+            let gap = pair[1].energy - pair[0].energy;
+            if gap < DEGENERATE_FACTOR * rounding {
+                out.push(format!(
+                    "levels {} and {} are degenerate to within rounding (they differ by {:.1e} {unit}): their wavefunctions may be any mixture of the two, so their nodes, signs and transition dipoles are not reliable",
+                    pair[0].n,
+                    pair[1].n,
+                    model.units.energy_out(gap)
+                ));
+            }
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use super::*;
+
+    fn model(text: &str) -> Model {
+        crate::input::load_str("t.toml", text.into(), Path::new("."), &[])
+            .unwrap()
+            .0
+    }
+
+    fn banded(wrap: bool) -> eigen::SymBanded {
+        let n = 7;
+        let off = |d: usize| if wrap { n } else { n - d };
+        eigen::SymBanded {
+            n,
+            bands: (0..3)
+                .map(|d| (0..off(d)).map(|i| (i * 3 + d) as f64 - 4.5).collect())
+                .collect(),
+            wrap,
+        }
+    }
+
+    #[test]
+    fn banded_product_and_norm_match_the_dense_matrix() {
+        for wrap in [false, true] {
+            let m = banded(wrap);
+            let dense = m.to_dense();
+            let x: Vec<f64> = (0..m.n).map(|i| (i as f64).sin() + 0.3).collect();
+            let y = banded_mul(&m, &x);
+            let want = &dense * nalgebra::DVector::from_vec(x.clone());
+            for (a, b) in y.iter().zip(want.iter()) {
+                assert!((a - b).abs() < 1e-12, "{wrap}: {a} vs {b}");
+            }
+            let col_max = (0..m.n)
+                .map(|j| dense.column(j).iter().map(|v| v.abs()).sum::<f64>())
+                .fold(0.0, f64::max);
+            assert!((norm1(&m) - col_max).abs() < 1e-12);
+        }
+    }
+
+    #[test]
+    fn a_vector_that_is_not_an_eigenvector_fails_the_residual_limit() {
+        let sol = solve(&model(
+            "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 60\n[levels]\ncount = 2\n",
+        ))
+        .unwrap();
+        let grid = &sol.grid;
+        let disc = hamiltonian::build(
+            grid,
+            &sol.potential,
+            crate::constants::hbar2_over_2me_ev_a2(),
+            crate::grid::Order::new(4).unwrap(),
+            crate::input::model::Scheme::FiniteDifference,
+        );
+        let z: Vec<f64> = sol.psi[0].iter().map(|p| p * grid.spacing.sqrt()).collect();
+        let good = residual_ratio(&disc.a, None, sol.levels[0].energy, &z);
+        assert!(good < 30.0, "{good}");
+        let bad = residual_ratio(&disc.a, None, sol.levels[0].energy * 1.001, &z);
+        assert!(bad > RESIDUAL_LIMIT, "{bad}");
+        assert!(residual_ratio(&disc.a, None, f64::NAN, &z).is_nan());
+    }
+
+    #[test]
+    fn a_potential_far_above_the_kinetic_scale_is_refused() {
+        let m = model("[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 50\n[[term]]\nshape = \"step\"\nfrom = 0.0\nto = 10.0\nheight = 1e300\n");
+        let e = solve(&m).unwrap_err();
+        assert!(matches!(e, SolveError::IllConditioned { .. }), "{e}");
+        assert!(!e.is_input_error());
+    }
+
+    #[test]
+    fn a_deep_well_warns_that_rounding_limits_the_energies() {
+        let deep = "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 100\n[levels]\ncount = 2\n[[term]]\nshape = \"step\"\nfrom = 4.0\nto = 6.0\nheight = -1e12\n";
+        let sol = solve(&model(deep)).unwrap();
+        assert!(
+            sol.warnings.iter().any(|w| w.contains("rounding limits")),
+            "{:?}",
+            sol.warnings
+        );
+        // The same well 1 eV deep has no such warning.
+        let shallow = deep.replace("-1e12", "-1.0");
+        let sol = solve(&model(&shallow)).unwrap();
+        assert!(
+            !sol.warnings.iter().any(|w| w.contains("rounding")),
+            "{:?}",
+            sol.warnings
+        );
+    }
+
+    #[test]
+    fn degenerate_levels_are_flagged_on_walls_but_not_on_a_ring() {
+        // Two wells 7 angstrom apart behind a barrier of about 4000 eV: the
+        // tunnel splitting is far below rounding.
+        let wells = "[domain]\nfrom = -6.0\nto = 6.0\n[grid]\npoints = 200\n[levels]\ncount = 2\n[[term]]\nshape = \"formula\"\nexpression = \"50 * (x^2 - 9)^2\"\n";
+        let sol = solve(&model(wells)).unwrap();
+        assert!(
+            sol.warnings
+                .iter()
+                .any(|w| w.contains("levels 1 and 2 are degenerate")),
+            "{:?}",
+            sol.warnings
+        );
+        // On a free ring levels 2 and 3 are exactly degenerate (k = ±1) by
+        // symmetry; that is no warning.
+        let ring = "[domain]\nfrom = 0.0\nto = 10.0\nboundary = \"periodic\"\n[grid]\npoints = 60\n[levels]\ncount = 3\n";
+        let sol = solve(&model(ring)).unwrap();
+        assert!(
+            (sol.levels[2].energy - sol.levels[1].energy).abs() < 1e-9,
+            "the ring's levels 2 and 3 should be degenerate"
+        );
+        assert!(sol.warnings.is_empty(), "{:?}", sol.warnings);
+    }
 }

@@ -61,6 +61,9 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
             at("grid.points", "grid")
         }
         SolveError::ToleranceUnreachable { .. } => at("grid.tolerance", "grid"),
+        SolveError::TooLarge { .. }
+        | SolveError::IllConditioned { .. }
+        | SolveError::NotConverged { .. } => CommandError::Compute(e.to_string()),
         SolveError::Eigen(_) if e.is_input_error() => at("levels", "levels"),
         SolveError::Eigen(_) => CommandError::Compute(e.to_string()),
     }

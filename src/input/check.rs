@@ -15,7 +15,7 @@ use super::error::{InputError, Location, SourceText};
 use super::model::*;
 use super::raw::*;
 use crate::grid::Order;
-use crate::potential::formula::Formula;
+use crate::potential::formula::{Formula, FormulaErrorKind};
 use crate::potential::table::{Interpolation, Outside, Table};
 use crate::potential::{chain, Potential, Term};
 use crate::units::{EnergyUnit, LengthUnit, Units};
@@ -253,6 +253,13 @@ impl<'a> Checker<'a> {
                     to.get_ref(),
                     from.get_ref()
                 ),
+            ));
+        }
+        if !(b - a).is_finite() {
+            return Err(self.err(
+                to.span(),
+                "domain.to",
+                "the domain's length overflows: from and to are too far apart to compute with",
             ));
         }
         let boundary = match &raw.boundary {
@@ -704,10 +711,14 @@ impl<'a> Checker<'a> {
                         .as_deref()
                         .and_then(|t| t.lines().nth(line - 1))
                         .map(str::to_string);
+                    let column = match (e.column(), &line_text) {
+                        (Some(field), Some(text)) => field_column(text, field),
+                        _ => 1,
+                    };
                     Location {
                         file: path.display().to_string(),
                         line,
-                        column: 1,
+                        column,
                         line_text,
                     }
                 }
@@ -759,7 +770,22 @@ impl<'a> Checker<'a> {
                 let s = span.start + quote + byte;
                 s..s + 1
             };
-            self.err(at, &format!("{key}.expression"), e.to_string())
+            // A fault in a constant (a reserved name) is found before the
+            // expression is read: point at the constant.
+            let constant = match e.kind() {
+                FormulaErrorKind::ConstantShadows { name }
+                | FormulaErrorKind::NonFiniteConstant { name } => raw
+                    .constants
+                    .as_ref()
+                    .and_then(|c| c.get_ref().get(name).map(|v| (name, v.span()))),
+                _ => None,
+            };
+            match constant {
+                Some((name, span)) => {
+                    self.err(span, &format!("{key}.constants.{name}"), e.to_string())
+                }
+                None => self.err(at, &format!("{key}.expression"), e.to_string()),
+            }
         })?;
         Ok(Term::Formula {
             formula: Arc::new(formula),
@@ -767,6 +793,19 @@ impl<'a> Checker<'a> {
             energy_unit: self.units.energy.in_ev(),
         })
     }
+}
+
+/// The 1-based character column where field `field` (1-based) of a CSV line
+/// starts, past the blanks that lead it, as the input file's messages count.
+fn field_column(line: &str, field: usize) -> usize {
+    let mut column = 1;
+    for (i, cell) in line.split(',').enumerate() {
+        if i + 1 == field {
+            return column + cell.chars().take_while(|c| c.is_whitespace()).count();
+        }
+        column += cell.chars().count() + 1;
+    }
+    column
 }
 
 /// The optional keys a raw term carries, with their spans.

@@ -24,25 +24,26 @@ pub use overrides::Override;
 /// Reads, overrides and checks the input file at `path`.
 pub fn load(path: &Path, overrides: &[Override]) -> Result<(Model, SourceText), InputError> {
     let name = path.display().to_string();
-    let file_error = |message: String| {
-        InputError::new(
-            Location {
-                file: name.clone(),
-                line: 0,
-                column: 0,
-                line_text: None,
-            },
-            "",
-            message,
-        )
-    };
-    let bytes =
-        std::fs::read(path).map_err(|e| file_error(format!("cannot read the input file: {e}")))?;
+    let bytes = std::fs::read(path).map_err(|e| {
+        let location = Location {
+            file: name.clone(),
+            line: 0,
+            column: 0,
+            line_text: None,
+        };
+        InputError::new(location, "", format!("cannot read the input file: {e}"))
+    })?;
     let text = String::from_utf8(bytes).map_err(|e| {
-        file_error(format!(
-            "the input file is not UTF-8 text (bad byte at offset {})",
-            e.utf8_error().valid_up_to()
-        ))
+        // Point at the first bad byte: the text before it is valid UTF-8.
+        let valid = e.utf8_error().valid_up_to();
+        let head = String::from_utf8_lossy(&e.as_bytes()[..valid]);
+        let mut location = error::locate_in(&name, &head, valid);
+        location.line_text = None;
+        InputError::new(
+            location,
+            "",
+            format!("the input file is not UTF-8 text (bad byte at offset {valid})"),
+        )
     })?;
     let base = path.parent().unwrap_or_else(|| Path::new("."));
     load_str(&name, text, base, overrides)
@@ -71,10 +72,23 @@ pub fn parse_raw(source: &SourceText, overrides: &[Override]) -> Result<raw::Raw
     let toml_error = |e: toml::de::Error| {
         let span = e.span();
         let location = source.locate(span.clone());
-        let key = span
+        let message = e.message().trim().to_string();
+        let mut key = span
             .map(|s| key_at(source, s.start, overrides))
             .unwrap_or_default();
-        InputError::new(location, key, e.message().trim().to_string())
+        // A missing key has no span of its own: the error points at its
+        // table, so name the key inside it.
+        if let Some(field) = message
+            .strip_prefix("missing field `")
+            .and_then(|m| m.split('`').next())
+        {
+            key = if key.is_empty() {
+                field.to_string()
+            } else {
+                format!("{key}.{field}")
+            };
+        }
+        InputError::new(location, key, message)
     };
     let root = DeTable::parse(&source.text).map_err(toml_error)?;
     let root_span = root.span();
@@ -108,12 +122,15 @@ fn key_at(source: &SourceText, offset: usize, overrides: &[Override]) -> String 
     let line_start = head.rfind('\n').map_or(0, |i| i + 1);
     let line = text[line_start..].lines().next().unwrap_or("");
     let name = line.split_once('=').map(|(k, _)| k.trim().to_string());
-    let section = head
-        .lines()
-        .rev()
+    // The section header on this line (an error at a table points at its
+    // header), else the nearest one above.
+    let section = std::iter::once(line)
+        .filter(|l| l.trim_start().starts_with('['))
+        .chain(head[..line_start].lines().rev())
         .map(str::trim)
         .find(|l| l.starts_with('['))
-        .map(|l| l.trim_matches(|c| c == '[' || c == ']').trim().to_string());
+        .and_then(|l| l.trim_start_matches('[').split(']').next())
+        .map(|l| l.trim().to_string());
     match (section, name) {
         (Some(s), Some(n)) if !line.trim_start().starts_with('[') => format!("{s}.{n}"),
         (Some(s), _) => s,

@@ -7,7 +7,9 @@
 //! them. A value is read as TOML (`3`, `1.5e-3`, `true`, `"text"`); anything
 //! that is not a TOML value is taken as a bare string (`walls`). Each
 //! overridden value carries the span marker [`OVERRIDE_BASE`]` + i`, so an
-//! error in it is reported against the `--set` that wrote it.
+//! error in it is reported against the `--set` that wrote it. An override of
+//! `grid.points`, `grid.spacing` or `grid.tolerance` replaces whichever of
+//! the three the file gives.
 
 use std::borrow::Cow;
 
@@ -15,6 +17,9 @@ use toml::de::{DeTable, DeValue};
 use toml::Spanned;
 
 use super::error::OVERRIDE_BASE;
+
+/// The keys of `[grid]` of which an input gives at most one.
+const RESOLUTION_KEYS: [&str; 3] = ["points", "spacing", "tolerance"];
 
 /// One `KEY=VALUE` override.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -124,9 +129,9 @@ pub fn apply<'a>(
     if i >= parts.len() {
         return Err(format!("`{}` names a table entry, not a value", ov.key));
     }
-    // The grid's resolution keys exclude each other: setting one replaces
-    // whichever the file gave.
-    if parts.len() == 2 && parts[0] == "grid" && RESOLUTION_KEYS.contains(&parts[1]) {
+    // The grid's resolution is one of three keys: overriding one replaces
+    // whichever the file gives, as `--set grid.points=N` is meant to.
+    if i == 1 && parts[0] == "grid" && RESOLUTION_KEYS.contains(&parts[1]) {
         for other in RESOLUTION_KEYS.iter().filter(|k| **k != parts[1]) {
             table.remove(*other);
         }
@@ -137,9 +142,6 @@ pub fn apply<'a>(
     );
     Ok(())
 }
-
-/// `[grid]` keys of which an input gives at most one.
-pub const RESOLUTION_KEYS: [&str; 3] = ["points", "spacing", "tolerance"];
 
 /// Reads an override's value text as a TOML value, or as a bare string when
 /// it is not one.
@@ -165,5 +167,28 @@ fn set_spans(v: &mut DeValue<'_>, span: &std::ops::Range<usize>) {
             }
         }
         _ => {}
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use super::*;
+    use crate::input::model::Resolution;
+
+    // Regression: `--set grid.points=N` on a file that gives grid.spacing
+    // was refused as giving both.
+    #[test]
+    fn a_resolution_override_replaces_the_files_resolution() {
+        let text = "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\nspacing = 0.1\norder = 2\n";
+        let ov = [Override::parse("grid.points=30").unwrap()];
+        let (model, _) =
+            crate::input::load_str("t.toml", text.into(), Path::new("."), &ov).unwrap();
+        assert_eq!(model.grid.resolution, Resolution::Points(30));
+        assert_eq!(model.grid.order.get(), 2);
+        // Two resolutions in the file itself are still refused.
+        let both = "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\nspacing = 0.1\npoints = 5\n";
+        assert!(crate::input::load_str("t.toml", both.into(), Path::new("."), &[]).is_err());
     }
 }

@@ -20,7 +20,8 @@ pub struct Potential {
     pub terms: Vec<Term>,
 }
 
-/// A term gave a value that is not a finite number.
+/// A term gave a value that is not a finite number, or made the sum of the
+/// terms up to it infinite.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[error("term {} gives {value} at x = {x} angstrom", .term + 1)]
 pub struct NonFinite {
@@ -48,6 +49,14 @@ impl Potential {
                     return Err(NonFinite { term: ti, x, value });
                 }
                 *vi += value;
+                // Finite terms can still add up to an infinite sum.
+                if !vi.is_finite() {
+                    return Err(NonFinite {
+                        term: ti,
+                        x,
+                        value: *vi,
+                    });
+                }
             }
         }
         Ok(v)
