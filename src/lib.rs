@@ -42,4 +42,5 @@ pub mod output;
 pub mod potential;
 pub mod report;
 pub mod solve;
+pub mod study;
 pub mod units;

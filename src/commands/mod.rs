@@ -4,7 +4,10 @@
 //! to print; the binary maps [`CommandError`] to the exit status (2 for bad
 //! input or usage, 1 for a computation that could not finish).
 
+pub mod fit;
+pub mod merge;
 pub mod solve;
+pub mod sweep;
 
 use crate::input::InputError;
 
