@@ -62,8 +62,11 @@ fn case_error(spec: &SweepSpec, e: SweepError) -> CommandError {
             let c = spec.grid.case(case);
             match sweep::load_case(spec, &c) {
                 Ok((model, text)) => match super::solve::solve_error(&model, &text, source) {
-                    CommandError::Input(mut i) => {
-                        i.message = format!("case {label}: {}", i.message);
+                    CommandError::Input(i) => {
+                        let mut i = sweep::vary_error(i, spec, &c);
+                        if !i.location.file.starts_with("--vary") {
+                            i.message = format!("case {label}: {}", i.message);
+                        }
                         CommandError::Input(i)
                     }
                     CommandError::Compute(m) => CommandError::Compute(format!("case {label}: {m}")),

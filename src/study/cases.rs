@@ -453,4 +453,20 @@ mod tests {
         assert!(Shard::parse("4/3").is_err());
         assert_eq!(Shard::parse("2/3").unwrap(), Shard { index: 2, count: 3 });
     }
+
+    proptest::proptest! {
+        #[test]
+        fn shards_partition_the_cases(a in 1usize..6, b in 1usize..6, n in 1usize..9) {
+            let g = CaseGrid::new(vec![
+                Vary::parse(&format!("a.b=1:{a}")).unwrap(),
+                Vary::parse(&format!("c.d=1:{b}")).unwrap(),
+            ])
+            .unwrap();
+            let mut seen: Vec<usize> = (1..=n)
+                .flat_map(|i| g.cases(Some(Shard { index: i, count: n })).into_iter().map(|c| c.number))
+                .collect();
+            seen.sort_unstable();
+            proptest::prop_assert_eq!(seen, (1..=a * b).collect::<Vec<_>>());
+        }
+    }
 }

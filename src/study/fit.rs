@@ -37,6 +37,7 @@ use rayon::prelude::*;
 use serde_json::{json, Value};
 
 use super::cases::CaseValue;
+pub use super::data::{Data, DataError, DataRow};
 use super::quantity::{Quantity, QuantityError};
 use crate::input::{self, InputError, Override};
 use crate::solve::{self, SolveError};
@@ -77,153 +78,6 @@ pub fn evaluate(
     let (model, _) = input::load(path, &ovs).map_err(EvalError::Input)?;
     let sol = solve::solve(&model)?;
     Ok(quantity.of(&model, &sol)?)
-}
-
-/// One row of the data file.
-#[derive(Debug, Clone, PartialEq)]
-pub struct DataRow {
-    /// Value of the data's key.
-    pub value: CaseValue,
-    /// Observed quantity.
-    pub observed: f64,
-    /// Its uncertainty (one standard deviation), when given.
-    pub uncertainty: Option<f64>,
-    /// 1-based line in the file.
-    pub line: usize,
-}
-
-/// A data file: one input key, one quantity, rows.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Data {
-    /// The file's name, for messages.
-    pub file: String,
-    /// The input key of the first column that is not a quantity.
-    pub key: String,
-    /// The observed quantity.
-    pub quantity: Quantity,
-    /// The rows.
-    pub rows: Vec<DataRow>,
-}
-
-/// A fault in a data file, with its line.
-#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
-#[error("error: {file}:{line}: {message}")]
-pub struct DataError {
-    /// The file.
-    pub file: String,
-    /// 1-based line (0: the file as a whole).
-    pub line: usize,
-    /// What is wrong.
-    pub message: String,
-}
-
-impl Data {
-    /// Reads a CSV with a header naming the key column (a dotted input key),
-    /// the quantity column (`gap`, `wavelength_nm`, `homo`, `lumo`,
-    /// `energy.N`) and optionally `uncertainty`. Lines starting with `#` and
-    /// blank lines are skipped.
-    pub fn read(path: &Path) -> Result<Self, DataError> {
-        let file = path.display().to_string();
-        let err = |line: usize, message: String| DataError {
-            file: file.clone(),
-            line,
-            message,
-        };
-        let text =
-            std::fs::read_to_string(path).map_err(|e| err(0, format!("cannot read: {e}")))?;
-        let mut lines = text
-            .lines()
-            .enumerate()
-            .map(|(i, l)| (i + 1, l.trim()))
-            .filter(|(_, l)| !l.is_empty() && !l.starts_with('#'));
-        let (hline, header) = lines
-            .next()
-            .ok_or_else(|| err(0, "the file has no header".into()))?;
-        let names: Vec<&str> = header.split(',').map(str::trim).collect();
-        let mut key_col = None;
-        let mut q_col = None;
-        let mut u_col = None;
-        for (i, n) in names.iter().enumerate() {
-            if *n == "uncertainty" {
-                u_col = Some(i);
-            } else if let Ok(q) = Quantity::parse(n) {
-                if q_col.is_some() {
-                    return Err(err(
-                        hline,
-                        format!("two quantity columns; keep one (found `{n}`)"),
-                    ));
-                }
-                q_col = Some((i, q));
-            } else if n.contains('.') && key_col.is_none() {
-                key_col = Some(i);
-            } else {
-                return Err(err(hline, format!("column `{n}` is neither an input key (such as chain.bonds), a quantity (gap, wavelength_nm, homo, lumo, energy.N) nor `uncertainty`")));
-            }
-        }
-        let key_col = key_col.ok_or_else(|| {
-            err(
-                hline,
-                "no column names an input key (such as chain.bonds)".into(),
-            )
-        })?;
-        let (q_col, quantity) = q_col.ok_or_else(|| {
-            err(
-                hline,
-                "no column names a quantity (gap, wavelength_nm, homo, lumo or energy.N)".into(),
-            )
-        })?;
-        let mut rows = Vec::new();
-        for (line, l) in lines {
-            let cells: Vec<&str> = l.split(',').map(str::trim).collect();
-            if cells.len() != names.len() {
-                return Err(err(
-                    line,
-                    format!("{} cells, the header has {}", cells.len(), names.len()),
-                ));
-            }
-            let num = |c: usize| -> Result<f64, DataError> {
-                cells[c]
-                    .parse::<f64>()
-                    .ok()
-                    .filter(|x| x.is_finite())
-                    .ok_or_else(|| {
-                        err(
-                            line,
-                            format!("`{}` under `{}` is not a number", cells[c], names[c]),
-                        )
-                    })
-            };
-            let value = match cells[key_col].parse::<i64>() {
-                Ok(i) => CaseValue::Int(i),
-                Err(_) => CaseValue::Float(num(key_col)?),
-            };
-            let uncertainty = match u_col {
-                Some(c) => {
-                    let s = num(c)?;
-                    if s <= 0.0 {
-                        return Err(err(line, format!("the uncertainty {s} must be positive")));
-                    }
-                    Some(s)
-                }
-                None => None,
-            };
-            rows.push(DataRow {
-                value,
-                observed: num(q_col)?,
-                uncertainty,
-                line,
-            });
-        }
-        if rows.is_empty() {
-            return Err(err(0, "the file has no data rows".into()));
-        }
-        Ok(Self {
-            file,
-            key: names[key_col].to_string(),
-            quantity,
-            rows,
-        })
-    }
 }
 
 /// A free key: its start value and bounds.
@@ -798,5 +652,39 @@ impl FitResult {
             self.rms, self.chi2, self.dof, self.evaluations
         ));
         out
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    fn free(lower: Option<f64>, upper: Option<f64>) -> Free {
+        Free {
+            key: "k".into(),
+            start: 0.0,
+            lower,
+            upper,
+        }
+    }
+
+    proptest! {
+        #[test]
+        fn bound_transforms_round_trip_and_stay_inside(p in -50.0f64..50.0, lo in -60.0f64..-55.0, w in 1.0f64..200.0) {
+            for f in [free(Some(lo), Some(lo + w + 110.0)), free(Some(lo), None), free(None, Some(lo + w + 110.0)), free(None, None)] {
+                let back = f.external(f.internal(p));
+                prop_assert!((back - p).abs() < 1e-6 * (1.0 + p.abs()), "{f:?} {p} {back}");
+            }
+        }
+
+        #[test]
+        fn any_internal_value_maps_inside_the_bounds(u in -1e3f64..1e3) {
+            let f = free(Some(0.0), Some(3.0));
+            let p = f.external(u);
+            prop_assert!((0.0..=3.0).contains(&p));
+            prop_assert!(free(Some(1.0), None).external(u) >= 1.0);
+            prop_assert!(free(None, Some(1.0)).external(u) <= 1.0);
+        }
     }
 }

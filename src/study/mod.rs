@@ -4,6 +4,7 @@
 //! - [`sweep`]: one solve per case, in parallel, rows in case order.
 //! - [`merge`]: the shards of a sweep joined into the unsharded document.
 //! - [`quantity`]: gap, wavelength, HOMO/LUMO and level energies of a solve.
+//! - [`data`]: measured series (CSV) for fits.
 //! - [`fit`]: Levenberg–Marquardt least squares of input values to data.
 //! - [`target`]: Brent's root finder for the value that gives a wanted quantity.
 //! - [`checkpoint`]: Ctrl-C and progress files, so interrupted work is kept.
@@ -11,6 +12,7 @@
 
 pub mod cases;
 pub mod checkpoint;
+pub mod data;
 pub mod fit;
 pub mod merge;
 pub mod quantity;

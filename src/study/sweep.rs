@@ -154,7 +154,7 @@ pub struct Prepared {
 
 /// Rewrites the location of a fault in a case's own override so that it
 /// names the `--vary` flag instead of an internal `--set`.
-fn vary_error(mut e: InputError, spec: &SweepSpec, case: &Case) -> InputError {
+pub fn vary_error(mut e: InputError, spec: &SweepSpec, case: &Case) -> InputError {
     for (i, ov) in case.overrides(&spec.grid.keys()).iter().enumerate() {
         if e.location.file == format!("--set {}", ov.text()) {
             e.location.file = format!("--vary {} (case {})", spec.grid.varies[i].spec, ov.text());
