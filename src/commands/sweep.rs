@@ -166,7 +166,7 @@ pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
         done = previous
             .rows
             .into_iter()
-            .filter(|r| prepared.cases.iter().any(|(c, _)| c.number == r.case))
+            .filter(|r| shard.is_none_or(|s| s.takes(r.case)) && r.case <= prepared.header.cases)
             .collect();
     }
     let saver = opts

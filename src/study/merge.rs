@@ -67,7 +67,7 @@ pub fn differs(a: &SweepHeader, b: &SweepHeader) -> Option<&'static str> {
 /// themselves incomplete are fine as long as together they cover every case.
 pub fn merge(parts: &[(String, SweepResult)]) -> Result<SweepResult, MergeError> {
     let (first_name, first) = parts.first().ok_or(MergeError::Nothing)?;
-    let mut rows: Vec<SweepRow> = Vec::new();
+    let mut rows: std::collections::BTreeMap<usize, SweepRow> = std::collections::BTreeMap::new();
     for (name, part) in parts {
         if let Some(what) = differs(&first.header, &part.header) {
             return Err(MergeError::Different {
@@ -77,7 +77,7 @@ pub fn merge(parts: &[(String, SweepResult)]) -> Result<SweepResult, MergeError>
             });
         }
         for row in &part.rows {
-            match rows.iter().find(|r| r.case == row.case) {
+            match rows.get(&row.case) {
                 Some(r) if r != row => {
                     return Err(MergeError::Conflict {
                         part: name.clone(),
@@ -85,15 +85,14 @@ pub fn merge(parts: &[(String, SweepResult)]) -> Result<SweepResult, MergeError>
                     })
                 }
                 Some(_) => {}
-                None => rows.push(row.clone()),
+                None => {
+                    rows.insert(row.case, row.clone());
+                }
             }
         }
     }
-    rows.sort_by_key(|r| r.case);
     let cases = first.header.cases;
-    let missing: Vec<usize> = (1..=cases)
-        .filter(|c| rows.binary_search_by_key(c, |r| r.case).is_err())
-        .collect();
+    let missing: Vec<usize> = (1..=cases).filter(|c| !rows.contains_key(c)).collect();
     if !missing.is_empty() {
         return Err(MergeError::Missing {
             count: missing.len(),
@@ -105,7 +104,7 @@ pub fn merge(parts: &[(String, SweepResult)]) -> Result<SweepResult, MergeError>
     header.shard = None;
     Ok(SweepResult {
         header,
-        rows,
+        rows: rows.into_values().collect(),
         complete: true,
     })
 }

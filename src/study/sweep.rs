@@ -234,10 +234,11 @@ pub fn run(
     done: Vec<SweepRow>,
     hooks: &Hooks<'_>,
 ) -> Result<SweepResult, SweepError> {
+    let finished_cases: std::collections::HashSet<usize> = done.iter().map(|r| r.case).collect();
     let todo: Vec<&(Case, Model)> = prepared
         .cases
         .iter()
-        .filter(|(c, _)| !done.iter().any(|r| r.case == c.number))
+        .filter(|(c, _)| !finished_cases.contains(&c.number))
         .collect();
     let total = prepared.cases.len();
     let finished = Mutex::new(done);
