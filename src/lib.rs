@@ -44,4 +44,5 @@ pub mod plot;
 pub mod potential;
 pub mod report;
 pub mod solve;
+pub mod study;
 pub mod units;

@@ -7,8 +7,11 @@
 pub mod bands;
 pub mod converge;
 pub mod figure;
+pub mod fit;
+pub mod merge;
 pub mod solve;
 pub mod starter;
+pub mod sweep;
 
 use crate::input::InputError;
 

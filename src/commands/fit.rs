@@ -1,0 +1,390 @@
+//! `chainwell fit`: fitted input values from a measured series, or (with
+//! `--target`) the value of one key that gives a wanted quantity.
+
+use std::path::{Path, PathBuf};
+
+use serde_json::{json, Value};
+
+use super::sweep::Outcome;
+use super::CommandError;
+use crate::input::{self, Override};
+use crate::study::checkpoint::{self, Saver};
+use crate::study::fit::{self, Data, FitError, FitSpec, Free};
+use crate::study::quantity::Quantity;
+use crate::study::target::{self, TargetError, TargetSpec};
+
+/// Options of `chainwell fit`.
+#[derive(Debug, Clone, Default)]
+pub struct FitOptions {
+    /// `--set` overrides.
+    pub overrides: Vec<Override>,
+    /// `--data FILE.csv`.
+    pub data: Option<PathBuf>,
+    /// `--free KEY[,KEY...]` (may be given several times).
+    pub free: Vec<String>,
+    /// `--bounds KEY=LO:HI` (either side may be empty).
+    pub bounds: Vec<String>,
+    /// `--target QUANTITY=VALUE`.
+    pub target: Option<String>,
+    /// Print JSON instead of a table.
+    pub json: bool,
+    /// `--save FILE`: the document (also when interrupted).
+    pub save: Option<PathBuf>,
+    /// `--resume FILE`: start from the values saved there.
+    pub resume: Option<PathBuf>,
+}
+
+/// The current value of a dotted key in the input (after `--set`), in the
+/// input's units; chain keys left at their defaults are read from the
+/// checked chain. `None` when the input has no value for it.
+pub fn current_value(
+    path: &Path,
+    overrides: &[Override],
+    key: &str,
+) -> Result<Option<(f64, bool)>, CommandError> {
+    let number = |text: &str| -> Option<(f64, bool)> {
+        match text.parse::<toml::Value>().ok().or_else(|| {
+            format!("v = {text}")
+                .parse::<toml::Table>()
+                .ok()
+                .and_then(|t| t.get("v").cloned())
+        }) {
+            Some(toml::Value::Integer(i)) => Some((i as f64, true)),
+            Some(toml::Value::Float(x)) => Some((x, false)),
+            _ => None,
+        }
+    };
+    if let Some(ov) = overrides.iter().rev().find(|o| o.key == key) {
+        return Ok(number(&ov.value));
+    }
+    let (model, source) = input::load(path, overrides)?;
+    let table: toml::Table = source
+        .text
+        .parse()
+        .map_err(|e| CommandError::Usage(format!("{}: {e}", source.name)))?;
+    let mut at = toml::Value::Table(table);
+    let mut found = true;
+    for part in key.split('.') {
+        let next = match (&at, part.parse::<usize>()) {
+            (toml::Value::Array(a), Ok(i)) => i.checked_sub(1).and_then(|i| a.get(i)).cloned(),
+            (toml::Value::Table(t), _) => t.get(part).cloned(),
+            _ => None,
+        };
+        match next {
+            Some(v) => at = v,
+            None => {
+                found = false;
+                break;
+            }
+        }
+    }
+    if found {
+        return Ok(match at {
+            toml::Value::Integer(i) => Some((i as f64, true)),
+            toml::Value::Float(x) => Some((x, false)),
+            _ => None,
+        });
+    }
+    let u = &model.units;
+    Ok(model.chain.as_ref().and_then(|c| match key {
+        "chain.bond_length" => Some((u.length_out(c.bond_length), false)),
+        "chain.end_extension" => Some((u.length_out(c.end_extension), false)),
+        "chain.alternation" => Some((u.energy_out(c.alternation), false)),
+        "chain.end_cap_height" => Some((u.energy_out(c.end_cap_height), false)),
+        "chain.end_cap_width" => Some((u.length_out(c.end_cap_width), false)),
+        _ => None,
+    }))
+}
+
+/// A `--bounds` flag: key, lower and upper bound.
+type Bound = (String, Option<f64>, Option<f64>);
+
+fn parse_bounds(flags: &[String]) -> Result<Vec<Bound>, CommandError> {
+    flags
+        .iter()
+        .map(|f| {
+            let bad = || CommandError::Usage(format!("--bounds {f}: expected KEY=LO:HI (either side may be empty), e.g. chain.alternation=0:3"));
+            let (k, r) = f.split_once('=').ok_or_else(bad)?;
+            let (lo, hi) = r.split_once(':').ok_or_else(bad)?;
+            let num = |t: &str| -> Result<Option<f64>, CommandError> {
+                let t = t.trim();
+                if t.is_empty() {
+                    Ok(None)
+                } else {
+                    t.parse::<f64>().ok().filter(|x| x.is_finite()).map(Some).ok_or_else(bad)
+                }
+            };
+            let (lo, hi) = (num(lo)?, num(hi)?);
+            if let (Some(a), Some(b)) = (lo, hi) {
+                if a >= b {
+                    return Err(CommandError::Usage(format!("--bounds {f}: LO must be below HI")));
+                }
+            }
+            Ok((k.trim().to_string(), lo, hi))
+        })
+        .collect()
+}
+
+fn frees(
+    path: &Path,
+    opts: &FitOptions,
+    resume: &[(String, f64)],
+) -> Result<Vec<Free>, CommandError> {
+    let bounds = parse_bounds(&opts.bounds)?;
+    let keys: Vec<String> = opts
+        .free
+        .iter()
+        .flat_map(|f| f.split(','))
+        .map(|k| k.trim().to_string())
+        .filter(|k| !k.is_empty())
+        .collect();
+    if keys.is_empty() {
+        return Err(CommandError::Usage(
+            "fit needs --free KEY[,KEY...]: the input keys to adjust".into(),
+        ));
+    }
+    for (k, _, _) in &bounds {
+        if !keys.contains(k) {
+            return Err(CommandError::Usage(format!(
+                "--bounds {k}=...: {k} is not among the --free keys"
+            )));
+        }
+    }
+    let mut out = Vec::new();
+    for (i, key) in keys.iter().enumerate() {
+        if keys[..i].contains(key) {
+            return Err(CommandError::Usage(format!(
+                "--free {key}: the key is named twice"
+            )));
+        }
+        let (start, integer) = match current_value(path, &opts.overrides, key)? {
+            Some(v) => v,
+            None => {
+                return Err(CommandError::Usage(format!(
+                    "--free {key}: the input gives no number for {key}; give a start value with --set {key}=VALUE"
+                )))
+            }
+        };
+        if integer {
+            return Err(CommandError::Usage(format!(
+                "--free {key}: {key} takes whole numbers and cannot be fitted; vary it with `chainwell sweep` instead"
+            )));
+        }
+        let start = resume
+            .iter()
+            .find(|(k, _)| k == key)
+            .map_or(start, |(_, v)| *v);
+        let (lower, upper) = bounds
+            .iter()
+            .find(|(k, _, _)| k == key)
+            .map_or((None, None), |(_, a, b)| (*a, *b));
+        if lower.is_some_and(|l| start < l) || upper.is_some_and(|u| start > u) {
+            return Err(CommandError::Usage(format!(
+                "--free {key}: the start value {start} lies outside --bounds; change it with --set {key}=VALUE"
+            )));
+        }
+        out.push(Free {
+            key: key.clone(),
+            start,
+            lower,
+            upper,
+        });
+    }
+    Ok(out)
+}
+
+fn text(doc: &Value) -> String {
+    let mut s = serde_json::to_string_pretty(doc).unwrap_or_default();
+    s.push('\n');
+    s
+}
+
+fn eval_error(e: fit::EvalError) -> CommandError {
+    match e {
+        fit::EvalError::Input(i) => CommandError::Input(i),
+        other => CommandError::Compute(other.to_string()),
+    }
+}
+
+fn resume_values(opts: &FitOptions) -> Result<Vec<(String, f64)>, CommandError> {
+    let Some(file) = &opts.resume else {
+        return Ok(vec![]);
+    };
+    let bad = |m: String| CommandError::Usage(format!("--resume {}: {m}", file.display()));
+    let text = std::fs::read_to_string(file).map_err(|e| bad(format!("cannot read: {e}")))?;
+    let doc: Value = serde_json::from_str(&text).map_err(|e| bad(format!("not JSON: {e}")))?;
+    if doc["format"] != fit::FORMAT {
+        return Err(bad(format!("not a {} document", fit::FORMAT)));
+    }
+    doc["parameters"]
+        .as_array()
+        .ok_or_else(|| bad("no `parameters`".into()))?
+        .iter()
+        .map(|p| {
+            Ok((
+                p["key"].as_str().unwrap_or_default().to_string(),
+                p["value"]
+                    .as_f64()
+                    .ok_or_else(|| bad("a parameter has no value".into()))?,
+            ))
+        })
+        .collect()
+}
+
+/// Runs `chainwell fit`.
+pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
+    let (base, source) = input::load(path, &opts.overrides)?;
+    let units = base.units.to_json();
+    let resume = resume_values(opts)?;
+    let free = frees(path, opts, &resume)?;
+    let stop = checkpoint::interrupt_flag();
+    let saver = opts
+        .save
+        .as_deref()
+        .or(opts.resume.as_deref())
+        .map(|p| Saver::new(p, std::time::Duration::ZERO));
+    let save = |doc: &Value| -> Result<(), CommandError> {
+        if let Some(s) = &saver {
+            s.save(true, || text(doc)).map_err(|e| {
+                CommandError::Compute(format!("cannot write {}: {e}", s.path().display()))
+            })?;
+        }
+        Ok(())
+    };
+    if let Some(t) = &opts.target {
+        if opts.data.is_some() {
+            return Err(CommandError::Usage("--target and --data cannot be combined: a target solves for one value, a fit matches a series".into()));
+        }
+        let bad = || {
+            CommandError::Usage(format!(
+                "--target {t}: expected QUANTITY=VALUE, e.g. wavelength_nm=550"
+            ))
+        };
+        let (q, v) = t.split_once('=').ok_or_else(bad)?;
+        let quantity =
+            Quantity::parse(q).map_err(|e| CommandError::Usage(format!("--target {t}: {e}")))?;
+        let target: f64 = v
+            .trim()
+            .parse()
+            .ok()
+            .filter(|x: &f64| x.is_finite())
+            .ok_or_else(bad)?;
+        let [f] = free.as_slice() else {
+            return Err(CommandError::Usage(format!(
+                "--target needs exactly one --free key, not {}",
+                free.len()
+            )));
+        };
+        let (Some(lo), Some(hi)) = (f.lower, f.upper) else {
+            return Err(CommandError::Usage(format!(
+                "--target needs both bounds of {0}: --bounds {0}=LO:HI",
+                f.key
+            )));
+        };
+        let spec = TargetSpec {
+            path: path.to_path_buf(),
+            overrides: opts.overrides.clone(),
+            key: f.key.clone(),
+            bounds: (lo, hi),
+            quantity,
+            target,
+            tolerance: 1e-10 * (hi - lo),
+        };
+        let r = target::solve_target(&spec, Some(stop)).map_err(|e| match e {
+            TargetError::Eval { key, at, source } => match *source {
+                fit::EvalError::Input(i) => CommandError::Input(i),
+                s => CommandError::Compute(format!("{key}={at}: {s}")),
+            },
+            e @ TargetError::Unreachable { .. } => CommandError::Usage(e.to_string()),
+            e => CommandError::Compute(e.to_string()),
+        })?;
+        let input = json!({"file": source.name, "text": source.text, "overrides": source.overrides, "bounds": [lo, hi]});
+        let doc = r.to_json(&units, &input);
+        save(&doc)?;
+        return Ok(Outcome {
+            stdout: if opts.json { text(&doc) } else { r.table() },
+            warnings: vec![],
+            failure: None,
+        });
+    }
+    let data_path = opts.data.as_ref().ok_or_else(|| {
+        CommandError::Usage("fit needs --data FILE.csv (or --target QUANTITY=VALUE)".into())
+    })?;
+    let data = Data::read(data_path).map_err(|e| {
+        CommandError::Usage(e.to_string().trim_start_matches("error: ").to_string())
+    })?;
+    if free.iter().any(|f| f.key == data.key) {
+        return Err(CommandError::Usage(format!(
+            "--free {0}: {0} is the data's varied key",
+            data.key
+        )));
+    }
+    let input = json!({
+        "file": source.name, "text": source.text, "overrides": source.overrides,
+        "data": data.file, "free": free.iter().map(|f| json!({"key": f.key, "start": f.start, "lower": f.lower, "upper": f.upper})).collect::<Vec<_>>(),
+    });
+    let spec = FitSpec {
+        path: path.to_path_buf(),
+        overrides: opts.overrides.clone(),
+        data,
+        free,
+    };
+    match fit::fit(&spec, Some(stop)) {
+        Ok(r) => {
+            let doc = r.to_json(&units, &input);
+            save(&doc)?;
+            Ok(Outcome {
+                stdout: if opts.json { text(&doc) } else { r.table() },
+                warnings: vec![],
+                failure: None,
+            })
+        }
+        Err(FitError::Interrupted { best, evaluations }) => {
+            let doc = json!({
+                "format": fit::FORMAT,
+                "program": crate::report::json::program(),
+                "units": units,
+                "complete": false,
+                "key": spec.data.key,
+                "quantity": spec.data.quantity.name(),
+                "parameters": spec.free.iter().zip(&best).map(|(f, v)| json!({"key": f.key, "value": v, "uncertainty": null, "start": f.start})).collect::<Vec<_>>(),
+                "evaluations": evaluations,
+                "rows": [],
+                "input": input,
+            });
+            save(&doc)?;
+            let place = saver
+                .as_ref()
+                .map(|s| {
+                    format!(
+                        "; best values so far saved to {0}, continue with --resume {0}",
+                        s.path().display()
+                    )
+                })
+                .unwrap_or_else(|| {
+                    "; rerun with --save FILE to keep the best values so far".into()
+                });
+            Ok(Outcome {
+                stdout: if opts.json { text(&doc) } else { String::new() },
+                warnings: vec![],
+                failure: Some(CommandError::Compute(format!(
+                    "interrupted after {evaluations} model evaluations{place}"
+                ))),
+            })
+        }
+        Err(FitError::Start(e)) => Err(match eval_error(*e) {
+            CommandError::Compute(m) => CommandError::Compute(format!("at the start values: {m}")),
+            other => other,
+        }),
+        Err(FitError::Eval { at, source }) => Err(match eval_error(*source) {
+            CommandError::Input(mut i) => {
+                i.message = format!("at {at}: {}", i.message);
+                CommandError::Input(i)
+            }
+            CommandError::Compute(m) => CommandError::Compute(format!("at {at}: {m}")),
+            other => other,
+        }),
+        Err(e @ FitError::TooFewRows { .. }) => Err(CommandError::Usage(e.to_string())),
+        Err(e) => Err(CommandError::Compute(e.to_string())),
+    }
+}
