@@ -1,0 +1,103 @@
+//! Input and output types of [`solve`](super::solve): level selection, method
+//! choice, tolerances and the returned eigenpairs with their diagnostics.
+
+/// Which levels to compute.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Selection {
+    /// Levels `first..first+count` in ascending order (0-based: `first = 0` is the ground state).
+    Index {
+        /// 0-based index of the lowest wanted level.
+        first: usize,
+        /// Number of wanted levels (may be 0).
+        count: usize,
+    },
+    /// Every level strictly below `energy` (same unit as the matrix entries, eV in chainwell).
+    Below {
+        /// Upper energy bound (exclusive).
+        energy: f64,
+    },
+}
+
+/// Algorithm choice.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// `Dense` when `n <= dense_limit`; `Tridiagonal` when p = 1, B = I and no wrap;
+    /// `ShiftInvert` otherwise.
+    Auto,
+    /// Full dense symmetric eigensolver (O(n^3) time, O(n^2) memory).
+    Dense,
+    /// Sturm bisection + Rayleigh-quotient inverse iteration + Rayleigh-Ritz
+    /// (p = 1, B = I, no wrap only).
+    Tridiagonal,
+    /// Lanczos on (A - sigma B)^-1 B with a banded (or bordered, for wrap) LDL^T.
+    ShiftInvert,
+}
+
+/// Tuning parameters of [`solve`](super::solve). See [`EigenParams::default`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct EigenParams {
+    /// Algorithm (default [`Method::Auto`]).
+    pub method: Method,
+    /// Largest n that `Auto` sends to the dense solver (default 300).
+    pub dense_limit: usize,
+    /// Refuse work whose estimated memory exceeds this many bytes
+    /// (default 4 GiB = 4 * 2^30).
+    pub memory_limit: usize,
+    /// Tridiagonal path: a level's Rayleigh-quotient iteration stops when the
+    /// residual 2-norm ||T z - rho z|| <= residual_tol * eps * ||T||_1
+    /// (default 4.0); it also stops on stagnation once the residual is below
+    /// N eps ||T||_1 / 2 (the LAPACK test scale).
+    pub residual_tol: f64,
+    /// Maximum Rayleigh-quotient / inverse iteration steps per level (tridiagonal path, default 40).
+    pub max_iterations: usize,
+    /// Maximum Lanczos steps per restart (default 0 = automatic:
+    /// 2 (k + 4) + 40 on the first run, doubled on each restart, capped by n).
+    pub max_lanczos: usize,
+    /// Maximum Lanczos restarts to recover missed (e.g. degenerate) levels (default 8).
+    pub max_restarts: usize,
+}
+
+impl Default for EigenParams {
+    fn default() -> Self {
+        Self {
+            method: Method::Auto,
+            dense_limit: 300,
+            memory_limit: 4 << 30,
+            residual_tol: 4.0,
+            max_iterations: 40,
+            max_lanczos: 0,
+            max_restarts: 8,
+        }
+    }
+}
+
+/// Computed eigenpairs.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Eigenpairs {
+    /// 0-based index (in the whole ascending spectrum) of `values[0]`.
+    pub first: usize,
+    /// Eigenvalues, ascending.
+    pub values: Vec<f64>,
+    /// Eigenvectors, `vectors[j]` belongs to `values[j]`; B-orthonormal
+    /// (x^T B x = 1), unit 2-norm when B = I.
+    pub vectors: Vec<Vec<f64>>,
+}
+
+/// How the result was obtained and how good it is.
+#[derive(Debug, Clone, PartialEq)]
+pub struct EigenInfo {
+    /// Method actually used (never `Auto`).
+    pub method: Method,
+    /// Iterations: inverse-iteration steps (tridiagonal), Lanczos steps (shift-invert), 0 (dense).
+    pub iterations: usize,
+    /// Number of O(N) / O(N p^2) factorisations or Sturm sweeps performed.
+    pub factorizations: usize,
+    /// Count of eigenvalues below the upper end of the returned set's isolating
+    /// interval, confirmed by a Sturm count / Sylvester inertia (equals
+    /// `first + values.len()` on success).
+    pub inertia_below: usize,
+    /// max_j ||A z_j - E_j B z_j||_1 / (||A||_1 N eps) (LAPACK DSTT21 form).
+    pub residual_ratio: f64,
+    /// ||Z^T B Z - I||_1 / (k eps) (LAPACK DSTT21 form).
+    pub orthogonality_ratio: f64,
+}

@@ -1,0 +1,202 @@
+//! Entry points: [`solve`] (selection handling, method choice, memory check,
+//! diagnostics) and [`count_below`] (Sturm count / Sylvester inertia).
+
+use super::dense::{dense_bytes, dense_eigen, solve_dense};
+use super::diagnostics::{orthogonality_ratio, residual_ratio};
+use super::error::EigenError;
+use super::ldlt::{factor, factor_guarded};
+use super::matrix::Problem;
+use super::params::{EigenInfo, EigenParams, Eigenpairs, Method, Selection};
+use super::shift_invert::{shift_invert_bytes, solve_shift_invert};
+use super::sturm::SturmData;
+use super::tridiagonal::{solve_tridiagonal, tridiagonal_bytes};
+
+/// Checks that B (if given) is positive definite by an LDL^T factorisation.
+fn check_b(problem: &Problem) -> Result<(), EigenError> {
+    if let Some(b) = problem.b {
+        let pb = Problem { a: b, b: None };
+        match factor(&pb, 0.0)? {
+            Some(f) if f.negatives == 0 => Ok(()),
+            _ => Err(EigenError::NotPositiveDefinite),
+        }
+    } else {
+        Ok(())
+    }
+}
+
+fn is_tridiagonal(problem: &Problem) -> bool {
+    problem.a.half_bandwidth() == 1 && problem.b.is_none() && !problem.a.wrap
+}
+
+/// Number of eigenvalues strictly below `sigma` (Sturm count for a plain
+/// tridiagonal A, otherwise the Sylvester inertia of A - sigma B from a
+/// banded/bordered LDL^T; a pivot within rounding of zero moves sigma by a
+/// few eps ||A||_1, see [`super::ldlt`]).
+pub fn count_below(problem: &Problem, sigma: f64) -> Result<usize, EigenError> {
+    problem.validate()?;
+    if !sigma.is_finite() {
+        return Err(EigenError::Shape {
+            what: "sigma is not finite".into(),
+        });
+    }
+    check_b(problem)?;
+    if is_tridiagonal(problem) {
+        let data = SturmData::new(&problem.a.bands[0], &problem.a.bands[1]);
+        return Ok(data.count(sigma));
+    }
+    Ok(factor_guarded(problem, sigma)?.negatives)
+}
+
+/// Computes the selected eigenpairs of A x = E B x.
+///
+/// Errors: `Shape` for inconsistent input, `SelectionOutOfRange`,
+/// `NotPositiveDefinite` (B), `TooLarge` (estimated memory above
+/// `params.memory_limit`), `NoConvergence`.
+pub fn solve(
+    problem: &Problem,
+    selection: &Selection,
+    params: &EigenParams,
+) -> Result<(Eigenpairs, EigenInfo), EigenError> {
+    problem.validate()?;
+    check_b(problem)?;
+    let n = problem.n();
+    let (first, count) = match *selection {
+        Selection::Index { first, count } => {
+            if first.checked_add(count).is_none_or(|end| end > n) {
+                return Err(EigenError::SelectionOutOfRange { first, count, n });
+            }
+            (first, count)
+        }
+        Selection::Below { energy } => (0, count_below(problem, energy)?),
+    };
+    let mut method = match params.method {
+        Method::Auto => {
+            if n <= params.dense_limit {
+                Method::Dense
+            } else if is_tridiagonal(problem) {
+                Method::Tridiagonal
+            } else {
+                Method::ShiftInvert
+            }
+        }
+        Method::Tridiagonal if !is_tridiagonal(problem) => {
+            return Err(EigenError::Shape {
+                what: "Tridiagonal needs p = 1, B = I and no wrap".into(),
+            })
+        }
+        m => m,
+    };
+    let p = problem.a.half_bandwidth();
+    let bytes = match method {
+        Method::Dense => dense_bytes(n),
+        Method::Tridiagonal => tridiagonal_bytes(n, count),
+        _ => {
+            let steps = if params.max_lanczos > 0 {
+                params.max_lanczos
+            } else {
+                2 * count + 48
+            };
+            shift_invert_bytes(n, p, count, steps)
+        }
+    };
+    if bytes > params.memory_limit {
+        return Err(EigenError::TooLarge {
+            bytes_needed: bytes,
+            limit: params.memory_limit,
+        });
+    }
+    let (values, vectors, iterations, factorizations, inertia_below) = if count == 0 {
+        (Vec::new(), Vec::new(), 0, 0, first)
+    } else {
+        match method {
+            Method::Dense => {
+                let (vals, vecs) = solve_dense(problem, first, count)?;
+                // confirm the window with one inertia count above it
+                let all = dense_eigen_upper(problem, first + count)?;
+                let top = match all {
+                    Some(next) => 0.5 * (vals[count - 1] + next),
+                    None => vals[count - 1] + 1.0 + vals[count - 1].abs(),
+                };
+                let ib = count_below(problem, top)?;
+                (vals, vecs, 0, 1, ib)
+            }
+            Method::Tridiagonal => {
+                match solve_tridiagonal(
+                    problem.a,
+                    first,
+                    count,
+                    params.residual_tol,
+                    params.max_iterations,
+                ) {
+                    Ok(o) => (
+                        o.values,
+                        o.vectors,
+                        o.iterations,
+                        o.factorizations,
+                        o.inertia_below,
+                    ),
+                    // levels closer than rounding: Auto falls back to Lanczos with locking
+                    Err(_) if params.method == Method::Auto => {
+                        method = Method::ShiftInvert;
+                        let o = solve_shift_invert(
+                            problem,
+                            first,
+                            count,
+                            params.max_lanczos,
+                            params.max_restarts,
+                        )?;
+                        (
+                            o.values,
+                            o.vectors,
+                            o.iterations,
+                            o.factorizations,
+                            o.inertia_below,
+                        )
+                    }
+                    Err(e) => return Err(e),
+                }
+            }
+            _ => {
+                let o = solve_shift_invert(
+                    problem,
+                    first,
+                    count,
+                    params.max_lanczos,
+                    params.max_restarts,
+                )?;
+                (
+                    o.values,
+                    o.vectors,
+                    o.iterations,
+                    o.factorizations,
+                    o.inertia_below,
+                )
+            }
+        }
+    };
+    let info = EigenInfo {
+        method,
+        iterations,
+        factorizations,
+        inertia_below,
+        residual_ratio: residual_ratio(problem, &values, &vectors),
+        orthogonality_ratio: orthogonality_ratio(problem, &vectors),
+    };
+    Ok((
+        Eigenpairs {
+            first,
+            values,
+            vectors,
+        },
+        info,
+    ))
+}
+
+/// The eigenvalue with index `idx` (None past the end), dense.
+fn dense_eigen_upper(problem: &Problem, idx: usize) -> Result<Option<f64>, EigenError> {
+    if idx >= problem.n() {
+        return Ok(None);
+    }
+    let (vals, _) = dense_eigen(problem)?;
+    Ok(Some(vals[idx]))
+}
