@@ -5,13 +5,15 @@
 //! sec. 3.3 and 15.2).
 //!
 //! Banded recurrence (Golub & Van Loan, *Matrix Computations*, 4th ed.,
-//! sec. 4.3.5), for i = 0..m with L[i][k] = 0 for |i - k| > p:
+//! sec. 4.3.5), for i = 0..m with `L[i][k]` = 0 for |i - k| > p:
 //!
+//! ```text
 //! L[i][k] = (M[i][k] - sum_{s<k} L[i][s] D_s L[k][s]) / D_k,
 //! D_i = M[i][i] - sum_{k<i} L[i][k]^2 D_k.
+//! ```
 //!
 //! Periodic (wrap) matrices: the last p indices form a border. With
-//! m = n - p, M = [[M11, M12], [M12^T, M22]] where M11 is banded and M12 holds
+//! m = n - p, `M = [[M11, M12], [M12^T, M22]]` where M11 is banded and M12 holds
 //! the corner couplings; M11 = L D L^T, S = M22 - M12^T M11^-1 M12 (p x p), and
 //! inertia(M) = inertia(D) + inertia(S) (Haynsworth inertia additivity,
 //! Linear Algebra Appl. 1 (1968) 73-81). Solves use the block elimination.

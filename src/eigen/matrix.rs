@@ -70,7 +70,7 @@ impl SymBanded {
         Ok(())
     }
 
-    /// Entry A[i][j] (0 outside the band). Panics if i or j >= n.
+    /// Entry `A[i][j]` (0 outside the band). Panics if i or j >= n.
     pub fn get(&self, i: usize, j: usize) -> f64 {
         assert!(i < self.n && j < self.n, "index out of range");
         let p = self.half_bandwidth();

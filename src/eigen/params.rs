@@ -1,4 +1,4 @@
-//! Input and output types of [`solve`](super::solve): level selection, method
+//! Input and output types of [`solve`](fn@super::solve): level selection, method
 //! choice, tolerances and the returned eigenpairs with their diagnostics.
 
 /// Which levels to compute.
@@ -33,7 +33,7 @@ pub enum Method {
     ShiftInvert,
 }
 
-/// Tuning parameters of [`solve`](super::solve). See [`EigenParams::default`].
+/// Tuning parameters of [`solve`](fn@super::solve). See [`EigenParams::default`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct EigenParams {
     /// Algorithm (default [`Method::Auto`]).
