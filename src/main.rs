@@ -194,6 +194,9 @@ enum Command {
         /// Continue the interrupted sweep saved in FILE (and keep saving to it).
         #[arg(long, value_name = "FILE")]
         resume: Option<PathBuf>,
+        /// Figure options (see `chainwell solve --help`).
+        #[command(flatten)]
+        plot: PlotArgs,
     },
     /// Input values fitted to a measured series, or the value that gives a wanted quantity.
     #[command(
@@ -226,6 +229,9 @@ enum Command {
         /// Start from the values of an earlier (interrupted) fit saved in FILE.
         #[arg(long, value_name = "FILE")]
         resume: Option<PathBuf>,
+        /// Figure options (see `chainwell solve --help`).
+        #[command(flatten)]
+        plot: PlotArgs,
     },
     /// Join the JSON documents of a sharded sweep into the unsharded one.
     #[command(
@@ -345,6 +351,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             csv,
             save,
             resume,
+            plot,
         } => {
             let opts = commands::sweep::SweepOptions {
                 overrides: commands::parse_overrides(&set)?,
@@ -354,6 +361,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
                 csv,
                 save,
                 resume,
+                figure: plot.options(),
             };
             finish(commands::sweep::run(&input, &opts)?)
         }
@@ -367,6 +375,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             json,
             save,
             resume,
+            plot,
         } => {
             let opts = commands::fit::FitOptions {
                 overrides: commands::parse_overrides(&set)?,
@@ -377,6 +386,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
                 json,
                 save,
                 resume,
+                figure: plot.options(),
             };
             finish(commands::fit::run(&input, &opts)?)
         }

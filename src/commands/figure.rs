@@ -257,3 +257,103 @@ pub fn bands(model: &Model, result: &super::bands::BandsResult) -> Figure {
     f.energy_unit = u.energy.label().to_string();
     Figure::Bands(f)
 }
+
+/// Levels (with HOMO and LUMO marked), the gap, or the wavelength against
+/// the first varied key of a sweep.
+pub fn sweep(result: &crate::study::sweep::SweepResult, kind: &str) -> Figure {
+    let key = result.header.keys.first().cloned().unwrap_or_default();
+    let energy_unit = result.header.units["energy"]
+        .as_str()
+        .unwrap_or("eV")
+        .to_string();
+    let values: Vec<f64> = result
+        .rows
+        .iter()
+        .map(|r| r.values.first().map_or(f64::NAN, |v| v.as_f64()))
+        .collect();
+    let (data, y_unit) = match kind {
+        "gap" => (
+            plot::SweepData::Quantity {
+                name: "HOMO–LUMO gap".into(),
+                values: result
+                    .rows
+                    .iter()
+                    .map(|r| r.gap().unwrap_or(f64::NAN))
+                    .collect(),
+            },
+            energy_unit,
+        ),
+        "wavelength" => (
+            plot::SweepData::Quantity {
+                name: "wavelength".into(),
+                values: result
+                    .rows
+                    .iter()
+                    .map(|r| r.wavelength_nm().unwrap_or(f64::NAN))
+                    .collect(),
+            },
+            "nm".to_string(),
+        ),
+        _ => (
+            plot::SweepData::Levels(
+                result
+                    .rows
+                    .iter()
+                    .map(|r| {
+                        // The frontier: three levels below the HOMO to three
+                        // above the LUMO, where the chemistry is.
+                        let levels: Vec<(usize, f64)> = match (r.homo(), r.lumo()) {
+                            (Some(h), Some(l)) => r
+                                .energies()
+                                .into_iter()
+                                .filter(|(n, _)| *n + 3 >= h && *n <= l + 3)
+                                .collect(),
+                            _ => r.energies(),
+                        };
+                        let index = |n: Option<usize>| {
+                            n.and_then(|n| levels.iter().position(|(m, _)| *m == n))
+                        };
+                        plot::SweepCase {
+                            energies: levels.iter().map(|(_, e)| *e).collect(),
+                            homo: index(r.homo()),
+                            lumo: index(r.lumo()),
+                        }
+                    })
+                    .collect(),
+            ),
+            energy_unit,
+        ),
+    };
+    Figure::Sweep(plot::SweepFigure {
+        key,
+        key_unit: String::new(),
+        values,
+        data,
+        y_unit,
+    })
+}
+
+/// Observed against model values of a fit, residuals below.
+pub fn fit(result: &crate::study::fit::FitResult, energy_unit: &str) -> Figure {
+    let name = result.quantity.name().to_string();
+    let y_unit = if name.contains("wavelength") {
+        "nm".to_string()
+    } else {
+        energy_unit.to_string()
+    };
+    let uncertainty: Option<Vec<f64>> = result
+        .rows
+        .iter()
+        .map(|r| r.uncertainty)
+        .collect::<Option<Vec<f64>>>();
+    Figure::Fit(plot::FitFigure {
+        x: result.rows.iter().map(|r| r.value.as_f64()).collect(),
+        observed: result.rows.iter().map(|r| r.observed).collect(),
+        uncertainty,
+        model: result.rows.iter().map(|r| r.model).collect(),
+        x_name: result.key.clone(),
+        x_unit: String::new(),
+        y_name: name,
+        y_unit,
+    })
+}

@@ -32,6 +32,8 @@ pub struct FitOptions {
     pub save: Option<PathBuf>,
     /// `--resume FILE`: start from the values saved there.
     pub resume: Option<PathBuf>,
+    /// `--plot`: observed against model, residuals below.
+    pub figure: super::figure::FigureOptions,
 }
 
 /// The current value of a dotted key in the input (after `--set`), in the
@@ -333,6 +335,11 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
         Ok(r) => {
             let doc = r.to_json(&units, &input);
             save(&doc)?;
+            if opts.figure.path.is_some() {
+                opts.figure.kind(&["fit"])?;
+                let energy_unit = units["energy"].as_str().unwrap_or("eV");
+                opts.figure.render(&super::figure::fit(&r, energy_unit))?;
+            }
             Ok(Outcome {
                 stdout: if opts.json { text(&doc) } else { r.table() },
                 warnings: vec![],

@@ -29,6 +29,9 @@ pub struct SweepOptions {
     pub save: Option<PathBuf>,
     /// `--resume FILE`: continue the sweep saved there (and keep saving to it).
     pub resume: Option<PathBuf>,
+    /// `--plot`: figures `levels` (default), `gap`, `wavelength` against
+    /// the first varied key.
+    pub figure: super::figure::FigureOptions,
 }
 
 /// What a command prints, and how it ends.
@@ -227,6 +230,10 @@ pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
         })?;
     }
     write_csv(&result, opts.csv.as_deref())?;
+    if opts.figure.path.is_some() && !result.rows.is_empty() {
+        let kind = opts.figure.kind(&["levels", "gap", "wavelength"])?;
+        opts.figure.render(&super::figure::sweep(&result, kind))?;
+    }
     let failure = (!result.complete).then(|| {
         let place = saver
             .as_ref()
