@@ -87,6 +87,9 @@ enum Command {
         /// spectrum.csv into this folder.
         #[arg(long, value_name = "DIR")]
         csv: Option<PathBuf>,
+        /// Skip the error estimate (two coarser solves) when only speed matters.
+        #[arg(long)]
+        no_estimate: bool,
         /// Figures: states (default), density, spectrum.
         #[command(flatten)]
         plot: PlotArgs,
@@ -287,6 +290,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
             json,
             no_timing,
             csv,
+            no_estimate,
             plot,
         } => {
             let opts = commands::solve::SolveOptions {
@@ -294,6 +298,7 @@ fn run(cli: Cli) -> Result<(), CommandError> {
                 json,
                 no_timing,
                 csv_dir: csv,
+                no_estimate,
                 figure: plot.options(),
             };
             let (out, warnings) = commands::solve::run(&input, &opts)?;

@@ -19,6 +19,9 @@ pub struct SolveOptions {
     /// Write levels.csv, wavefunctions.csv, transitions.csv and
     /// spectrum.csv into this folder.
     pub csv_dir: Option<std::path::PathBuf>,
+    /// Skip the error estimate (two coarser solves): faster, but levels
+    /// carry no `error_estimate`.
+    pub no_estimate: bool,
     /// `--plot` and its options: figures `states` (default), `density`,
     /// `spectrum`.
     pub figure: super::figure::FigureOptions,
@@ -73,7 +76,12 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
 /// for stderr.
 pub fn run(path: &Path, opts: &SolveOptions) -> Result<(String, Vec<String>), CommandError> {
     let (model, source) = input::load(path, &opts.overrides)?;
-    let sol: Solution = solve::solve(&model).map_err(|e| solve_error(&model, &source, e))?;
+    let sopts = solve::SolveOptions {
+        estimate: !opts.no_estimate,
+        ..Default::default()
+    };
+    let sol: Solution =
+        solve::solve_with(&model, &sopts).map_err(|e| solve_error(&model, &source, e))?;
     if let Some(dir) = &opts.csv_dir {
         let spectrum = solve::spectrum(&model, &sol);
         let files = report::csv::solve_files(&model, &sol, &spectrum);
