@@ -33,12 +33,13 @@ pub struct Discretisation {
 
 impl Discretisation {
     /// The wavefunction values from an eigenvector of the pair.
-    pub fn psi(&self, x: &[f64]) -> Vec<f64> {
+    pub fn psi(&self, x: Vec<f64>) -> Vec<f64> {
         match &self.to_psi {
-            None => x.to_vec(),
+            // Finite differences: the eigenvector is psi (no copy).
+            None => x,
             Some(b) => {
                 let mut y = vec![0.0; x.len()];
-                mul(b, x, &mut y);
+                mul(b, &x, &mut y);
                 y
             }
         }

@@ -434,8 +434,9 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     let box_length = model.domain.length();
     let mut levels = Vec::with_capacity(pairs.values.len());
     let mut psis = Vec::with_capacity(pairs.values.len());
-    for (j, (energy, vector)) in pairs.values.iter().zip(&pairs.vectors).enumerate() {
-        let n = pairs.first + j + 1;
+    let first0 = pairs.first;
+    for (j, (energy, vector)) in pairs.values.iter().zip(pairs.vectors).enumerate() {
+        let n = first0 + j + 1;
         let mut psi = disc.psi(vector);
         states::normalise(&mut psi, h);
         let box_energy = (grid.boundary == Boundary::Walls)
@@ -464,8 +465,23 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
         .map(|(l, psi)| observables::summarise(l.n, &x, &v, psi, h, l.energy))
         .collect();
     let first_n = pairs.first + 1;
+    let mut skipped_filling = None;
     let occupancy = match model.levels.electrons {
-        Some(e) => Some(observables::fill(&energies, first_n, e)?),
+        Some(e) => match observables::fill(&energies, first_n, e) {
+            Ok(o) => Some(o),
+            // A chain's default electrons (one per atom) that fall outside
+            // the levels asked for are no fault of the input: skip the filling.
+            Err(
+                err @ (OccupancyError::TooFewLevels { .. }
+                | OccupancyError::HomoBelowComputed { .. }),
+            ) if !model.levels.electrons_given => {
+                skipped_filling = Some(format!(
+                    "no occupancy: {err}; set levels.first and levels.count around the HOMO (or levels.electrons) to fill the chain"
+                ));
+                None
+            }
+            Err(err) => return Err(err.into()),
+        },
         None => None,
     };
     let occupations: Vec<f64> = occupancy
@@ -504,6 +520,7 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     };
     let mut warnings = warnings(model, grid, &v, &levels);
     warnings.extend(precision_warnings(model, grid, &levels, rounding, scale));
+    warnings.extend(skipped_filling);
     if !edge_report.aligned {
         warnings.push(format!(
             "the potential jumps at x = {:?} between grid points: levels then converge at low, erratic order and error estimates are unreliable; put the jumps at simple fractions of the domain",

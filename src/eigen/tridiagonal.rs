@@ -30,7 +30,7 @@ use super::dense::fix_sign;
 use super::error::EigenError;
 use super::matrix::{Problem, SymBanded};
 use super::sturm::{sturm_counts, SturmData};
-use super::subspace::{dot, rayleigh_ritz};
+use super::subspace::{dot, rayleigh_ritz_in_place};
 
 /// Result of the tridiagonal path.
 #[derive(Debug, Clone)]
@@ -363,7 +363,7 @@ pub fn solve_tridiagonal(
     // phase 3: Rayleigh-Ritz
     let problem = Problem { a: t, b: None };
     let (values, mut vectors) = if count > 1 {
-        rayleigh_ritz(&problem, &vectors)?
+        rayleigh_ritz_in_place(&problem, vectors)?
     } else {
         let v = vectors.pop().map(|v| vec![v]).unwrap_or_default();
         let vals = v

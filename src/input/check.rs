@@ -386,6 +386,7 @@ impl<'a> Checker<'a> {
         electrons_default: Option<usize>,
     ) -> Result<LevelSpec> {
         let raw = l.map(Spanned::get_ref);
+        let electrons_given = raw.and_then(|r| r.electrons.as_ref()).is_some();
         let electrons = match raw.and_then(|r| r.electrons.as_ref()) {
             Some(e) => Some(self.count(e, "levels.electrons", 1)?),
             None => electrons_default,
@@ -423,6 +424,7 @@ impl<'a> Checker<'a> {
             first,
             below,
             electrons,
+            electrons_given,
         })
     }
 

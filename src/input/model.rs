@@ -84,6 +84,9 @@ pub struct LevelSpec {
     pub below: Option<f64>,
     /// Electrons to fill, two per level from the bottom.
     pub electrons: Option<usize>,
+    /// Whether `electrons` was written in the input (or an override) rather
+    /// than taken from a chain's one-per-atom default.
+    pub electrons_given: bool,
 }
 
 /// A `[[chain.site]]`, checked.
