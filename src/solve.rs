@@ -727,7 +727,7 @@ pub const ROUNDING_WARNING: f64 = 1e-6;
 /// treated as degenerate: their eigenvectors may be any mixture of the two
 /// (the angle of an eigenvector's error is about rounding / gap; Davis and
 /// Kahan, SIAM J. Numer. Anal. 7, 1 (1970)).
-pub const DEGENERATE_FACTOR: f64 = 1e3;
+pub const DEGENERATE_FACTOR: f64 = 1e2;
 
 /// `y = M x` for a symmetric banded matrix, reading its bands exactly as
 /// [`SymBanded::to_dense`](crate::eigen::SymBanded::to_dense) does.
