@@ -52,6 +52,18 @@ pub fn count_below(problem: &Problem, sigma: f64) -> Result<usize, EigenError> {
 /// Errors: `Shape` for inconsistent input, `SelectionOutOfRange`,
 /// `NotPositiveDefinite` (B), `TooLarge` (estimated memory above
 /// `params.memory_limit`), `NoConvergence`.
+///
+/// ```
+/// use chainwell::eigen::{solve, EigenParams, Problem, Selection, SymBanded};
+/// // tridiag(-1, 2, -1) of order 50: eigenvalues 2 - 2 cos(j pi / 51).
+/// let n = 50;
+/// let a = SymBanded { n, bands: vec![vec![2.0; n], vec![-1.0; n - 1]], wrap: false };
+/// let problem = Problem { a: &a, b: None };
+/// let (pairs, info) = solve(&problem, &Selection::Index { first: 0, count: 3 }, &EigenParams::default()).unwrap();
+/// let exact = 2.0 - 2.0 * (std::f64::consts::PI / 51.0).cos();
+/// assert!((pairs.values[0] - exact).abs() < 1e-13);
+/// assert_eq!(info.inertia_below, 3);
+/// ```
 pub fn solve(
     problem: &Problem,
     selection: &Selection,

@@ -48,6 +48,13 @@ impl fmt::Display for Order {
 
 /// Weights `c_0 .. c_p` of the central second-derivative stencil of the given
 /// order, for unit spacing: `f'' ≈ (c_0 f_0 + Σ_{d≥1} c_d (f_d + f_{-d})) / h²`.
+///
+/// ```
+/// use chainwell::grid::{second_derivative_weights, Order};
+/// // The five-point stencil: (-1/12, 4/3, -5/2, 4/3, -1/12).
+/// let w = second_derivative_weights(Order::new(4).unwrap());
+/// assert!((w[0] + 2.5).abs() < 1e-14 && (w[1] - 4.0 / 3.0).abs() < 1e-14);
+/// ```
 pub fn second_derivative_weights(order: Order) -> Vec<f64> {
     let p = order.half_width() as i64;
     let offsets: Vec<f64> = (-p..=p).map(|d| d as f64).collect();

@@ -69,6 +69,14 @@ pub fn effective_box_length(energy_above_floor: f64, n: usize, kinetic: f64) -> 
 /// For `n == m` the result is the mean position `L/2`. Off-diagonal values
 /// do not depend on where the origin is; the diagonal does. Since
 /// `psi_0` vanishes identically, `n = 0` or `m = 0` gives 0.
+///
+/// ```
+/// use chainwell::observables::box_dipole;
+/// use std::f64::consts::PI;
+/// // <1|x|2> = -16 L / (9 pi^2).
+/// assert!((box_dipole(1, 2, 3.0) + 16.0 * 3.0 / (9.0 * PI * PI)).abs() < 1e-15);
+/// assert_eq!(box_dipole(1, 3, 3.0), 0.0);
+/// ```
 pub fn box_dipole(n: usize, m: usize, length: f64) -> f64 {
     if n == 0 || m == 0 {
         return 0.0;

@@ -129,6 +129,14 @@ pub struct Occupancy {
 /// computed levels, [`OccupancyError::HomoBelowComputed`] when the HOMO lies
 /// below them, and [`OccupancyError::NonFiniteEnergy`] /
 /// [`OccupancyError::NotAscending`] for bad energies.
+///
+/// ```
+/// use chainwell::observables::fill;
+/// // Five electrons in levels 1..4: the third level is singly occupied.
+/// let o = fill(&[1.0, 2.0, 3.0, 4.0], 1, 5).unwrap();
+/// assert_eq!((o.homo, o.lumo, o.singly_occupied), (3, Some(4), Some(3)));
+/// assert_eq!(o.gap, Some(1.0));
+/// ```
 pub fn fill(
     energies: &[f64],
     first_n: usize,

@@ -857,6 +857,15 @@ impl Formula {
     /// values must be finite; both are checked (in name order) even for
     /// constants the expression does not use. Errors carry the 0-based
     /// character offset of the fault in `source`.
+    ///
+    /// ```
+    /// use std::collections::BTreeMap;
+    /// use chainwell::potential::formula::Formula;
+    /// let c = BTreeMap::from([("a".to_string(), 2.0)]);
+    /// let f = Formula::parse("-a * x^2 + 1", &c).unwrap();
+    /// assert_eq!(f.eval(3.0), -17.0); // -x^2 is -(x^2)
+    /// assert_eq!(Formula::parse("2 * sn(x)", &c).unwrap_err().offset(), 4);
+    /// ```
     pub fn parse(source: &str, constants: &BTreeMap<String, f64>) -> Result<Formula, FormulaError> {
         for (name, value) in constants {
             if is_reserved(name) {

@@ -238,6 +238,13 @@ fn number(cell: &str, line: usize, column: usize) -> Result<f64, TableError> {
 impl Table {
     /// Parses CSV `text` (format in the module docs). Lines and fields in
     /// errors are 1-based.
+    ///
+    /// ```
+    /// use chainwell::potential::table::{Interpolation, Outside, Table};
+    /// let t = Table::parse("x,V\n0,0\n1,2\n2,0\n", Interpolation::Linear, Outside::Value(0.0)).unwrap();
+    /// assert_eq!(t.eval(0.5), 1.0);
+    /// assert_eq!(t.eval(5.0), 0.0); // outside the table
+    /// ```
     pub fn parse(
         text: &str,
         interpolation: Interpolation,
