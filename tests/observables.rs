@@ -134,3 +134,16 @@ fn spectrum_integrates_back_to_the_strengths() {
     let back = integrated_strength(&sp);
     assert!((back / total - 1.0).abs() < 1e-3, "{back} vs {total}");
 }
+
+#[test]
+fn default_chain_electrons_outside_the_levels_skip_the_filling() {
+    // 10 pi electrons by default, but only levels 1..4 asked for: no error,
+    // no occupancy, and a warning that says why.
+    let sol = solve("[chain]\nbonds = 9\n[grid]\npoints = 200\n[levels]\ncount = 4\n");
+    assert!(sol.occupancy.is_none());
+    assert!(
+        sol.warnings.iter().any(|w| w.contains("no occupancy")),
+        "{:?}",
+        sol.warnings
+    );
+}
