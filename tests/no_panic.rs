@@ -407,6 +407,9 @@ fn bases() -> Vec<String> {
         .unwrap()
         .map(|e| e.unwrap().path())
         .filter(|p| p.extension().is_some_and(|e| e == "toml"))
+        // The long chain asks for levels 991..1010, more than the capped
+        // grids of these cases hold; it is run by tests/potentials.rs.
+        .filter(|p| p.file_name().is_none_or(|n| n != "long_chain.toml"))
         .map(|p| std::fs::read_to_string(p).unwrap())
         .collect();
     docs.sort();

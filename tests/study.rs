@@ -293,21 +293,21 @@ fn bad_vary_flags_are_usage_errors_naming_the_flag_or_key() {
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("--vary chain.bonds=0,2"), "{err}");
-    // A case the solve refuses (too few levels for its electrons) names the
-    // flag and the case, exit 2, and prints nothing on stdout.
+    // A case the solve refuses (too few levels for the electrons it asks
+    // for) names the flag and the case, exit 2, and prints nothing on stdout.
     let out = run(&[
         "sweep",
         i,
         "--set",
         "levels.count=3",
         "--vary",
-        "chain.bonds=2:6",
+        "levels.electrons=2,6",
         "--json",
     ]);
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(
-        err.contains("--vary chain.bonds=2:6 (case chain.bonds=4)"),
+        err.contains("--vary levels.electrons=2,6 (case levels.electrons=6)"),
         "{err}"
     );
     assert!(out.stdout.is_empty());
