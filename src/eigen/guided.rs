@@ -218,7 +218,9 @@ pub fn solve_guided(
         .windows(2)
         .map(|w| w[1] - w[0])
         .fold(f64::INFINITY, f64::min);
-    let guard = 64.0 * f64::EPSILON * anorm * 16.0;
+    // the first shift of the pivot guard; a larger one is caught by the
+    // checks on the shifts actually factored below
+    let guard = 64.0 * f64::EPSILON * anorm;
     let delta = if min_gap.is_finite() {
         min_gap / 20.0
     } else {
