@@ -991,4 +991,38 @@ mod tests {
         );
         assert!(sol.warnings.is_empty(), "{:?}", sol.warnings);
     }
+
+    #[test]
+    fn large_higher_order_grids_take_order2_guesses_and_agree_with_shift_invert() {
+        // invented test potential: a cosine ripple in a 40 angstrom box
+        let text = "[domain]\nfrom = 0.0\nto = 40.0\n[grid]\npoints = 8000\nSCHEME\n[levels]\nfirst = 31\ncount = 6\n[[term]]\nshape = \"formula\"\nexpression = \"0.7 * cos(0.9 * x)\"\n";
+        for scheme in ["order = 8", "order = 4", "scheme = \"numerov\""] {
+            let m = model(&text.replace("SCHEME", scheme));
+            let grid = grid_for(&m);
+            assert!(grid.points > GUESS_MIN_POINTS);
+            let guided = solve_on(&m, &grid, &EigenParams::default()).unwrap();
+            assert_eq!(guided.diagnostics.method, "guided", "{scheme}");
+            let plain = EigenParams {
+                method: Method::ShiftInvert,
+                ..Default::default()
+            };
+            let reference = solve_on(&m, &grid, &plain).unwrap();
+            assert_eq!(reference.diagnostics.method, "shift-invert");
+            let tol = 64.0 * roundoff_floor(&m, &grid, &guided.potential);
+            for (a, b) in guided.levels.iter().zip(&reference.levels) {
+                assert_eq!(a.n, b.n);
+                assert!(
+                    (a.energy - b.energy).abs() <= tol,
+                    "{scheme} level {}: {} vs {}",
+                    a.n,
+                    a.energy,
+                    b.energy
+                );
+            }
+            let e = energies_on(&m, &grid, 30, 6, &EigenParams::default()).unwrap();
+            for (a, b) in e.iter().zip(&reference.levels) {
+                assert!((a - b.energy).abs() <= tol, "{scheme}: {a} vs {}", b.energy);
+            }
+        }
+    }
 }
