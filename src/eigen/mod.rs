@@ -17,12 +17,16 @@
 //!   ([`tridiagonal`] module docs give the sources).
 //! * `ShiftInvert` — shift-and-invert Lanczos with full
 //!   re-orthogonalisation on a banded (bordered for wrap) LDL^T.
+//! * `Guided` — with one guess per wanted level ([`EigenParams::guesses`]):
+//!   inverse iteration at each guess, Rayleigh-Ritz and an inertia proof
+//!   ([`guided`]); falls back to `ShiftInvert` when the proof fails.
 //!
 //! Diagnostics follow LAPACK's DSTT21/DSTT22 scalings ([`diagnostics`]).
 
 pub mod dense;
 pub mod diagnostics;
 pub mod error;
+pub mod guided;
 pub mod ldlt;
 pub mod matrix;
 pub mod params;

@@ -31,6 +31,12 @@ pub enum Method {
     Tridiagonal,
     /// Lanczos on (A - sigma B)^-1 B with a banded (or bordered, for wrap) LDL^T.
     ShiftInvert,
+    /// Index windows only, and only with [`EigenParams::guesses`]: inverse
+    /// iteration at each guess, Rayleigh-Ritz, and an inertia proof of the
+    /// window; falls back to `ShiftInvert` when the proof fails
+    /// ([`super::guided`]). `Auto` takes it for a non-tridiagonal problem
+    /// with n > `dense_limit` when guesses are given.
+    Guided,
 }
 
 /// Tuning parameters of [`solve`](fn@super::solve). See [`EigenParams::default`].
@@ -55,6 +61,15 @@ pub struct EigenParams {
     pub max_lanczos: usize,
     /// Maximum Lanczos restarts to recover missed (e.g. degenerate) levels (default 8).
     pub max_restarts: usize,
+    /// Approximate eigenvalues of the wanted levels, one per level of a
+    /// [`Selection::Index`] window, ascending (default `None`). They should
+    /// be much closer to their levels than the level spacing (e.g. the
+    /// order-2 eigenvalues of the same potential on the same grid for an
+    /// order-2p problem). They only choose the shifts of [`Method::Guided`]:
+    /// the result is proven by inertia counts, and wrong or missing guesses
+    /// cost time (a fallback to `ShiftInvert`), never correctness. Ignored by
+    /// the other methods and for `Selection::Below`.
+    pub guesses: Option<Vec<f64>>,
 }
 
 impl Default for EigenParams {
@@ -67,6 +82,7 @@ impl Default for EigenParams {
             max_iterations: 40,
             max_lanczos: 0,
             max_restarts: 8,
+            guesses: None,
         }
     }
 }
@@ -88,7 +104,7 @@ pub struct Eigenpairs {
 pub struct EigenInfo {
     /// Method actually used (never `Auto`).
     pub method: Method,
-    /// Iterations: inverse-iteration steps (tridiagonal), Lanczos steps (shift-invert), 0 (dense).
+    /// Iterations: inverse-iteration steps (tridiagonal, guided), Lanczos steps (shift-invert), 0 (dense).
     pub iterations: usize,
     /// Number of O(N) / O(N p^2) factorisations or Sturm sweeps performed.
     pub factorizations: usize,

@@ -4,6 +4,7 @@
 use super::dense::{dense_bytes, dense_eigen, solve_dense};
 use super::diagnostics::{orthogonality_ratio, residual_ratio};
 use super::error::EigenError;
+use super::guided::solve_guided;
 use super::ldlt::{factor, factor_guarded};
 use super::matrix::Problem;
 use super::params::{EigenInfo, EigenParams, Eigenpairs, Method, Selection};
@@ -87,6 +88,8 @@ pub fn solve(
                 Method::Dense
             } else if is_tridiagonal(problem) {
                 Method::Tridiagonal
+            } else if params.guesses.is_some() && matches!(selection, Selection::Index { .. }) {
+                Method::Guided
             } else {
                 Method::ShiftInvert
             }
@@ -96,8 +99,20 @@ pub fn solve(
                 what: "Tridiagonal needs p = 1, B = I and no wrap".into(),
             })
         }
+        Method::Guided
+            if params.guesses.is_none() || !matches!(selection, Selection::Index { .. }) =>
+        {
+            return Err(EigenError::Shape {
+                what: "Guided needs an index selection and guesses".into(),
+            })
+        }
         m => m,
     };
+    if method == Method::Guided && params.guesses.as_ref().is_some_and(|g| g.len() != count) {
+        return Err(EigenError::Shape {
+            what: format!("{count} levels wanted but guesses given for a different number"),
+        });
+    }
     let p = problem.a.half_bandwidth();
     let bytes = match method {
         Method::Dense => dense_bytes(n),
@@ -166,6 +181,35 @@ pub fn solve(
                         )
                     }
                     Err(e) => return Err(e),
+                }
+            }
+            Method::Guided => {
+                let guesses = params.guesses.as_deref().unwrap_or_default();
+                if let Some(o) = solve_guided(problem, first, count, guesses)? {
+                    (
+                        o.values,
+                        o.vectors,
+                        o.iterations,
+                        o.factorizations,
+                        o.inertia_below,
+                    )
+                } else {
+                    // the guesses did not lead to a proven window
+                    method = Method::ShiftInvert;
+                    let o = solve_shift_invert(
+                        problem,
+                        first,
+                        count,
+                        params.max_lanczos,
+                        params.max_restarts,
+                    )?;
+                    (
+                        o.values,
+                        o.vectors,
+                        o.iterations,
+                        o.factorizations,
+                        o.inertia_below,
+                    )
                 }
             }
             _ => {

@@ -418,3 +418,200 @@ proptest! {
         }
     }
 }
+
+/// A discretisation of -t d2/dx2 + V on `n` unknowns between walls at 0 and
+/// `len` A: finite differences of `order` (2, 4, 6, 8), or Numerov for order 0.
+fn walls_problem(
+    n: usize,
+    len: f64,
+    order: u32,
+    v: impl Fn(f64) -> f64,
+) -> crate::hamiltonian::Discretisation {
+    use crate::input::model::{Boundary, Scheme};
+    let grid = crate::grid::Grid {
+        from: 0.0,
+        spacing: len / (n as f64 + 1.0),
+        points: n,
+        boundary: Boundary::Walls,
+    };
+    let vs: Vec<f64> = grid.positions().iter().map(|&x| v(x)).collect();
+    let (o, scheme) = if order == 0 {
+        (2, Scheme::Numerov)
+    } else {
+        (order, Scheme::FiniteDifference)
+    };
+    crate::hamiltonian::build(&grid, &vs, T_E, crate::grid::Order::new(o).unwrap(), scheme)
+}
+
+/// Order-2 eigenvalues of the same potential on the same grid.
+fn order2_values(
+    n: usize,
+    len: f64,
+    first: usize,
+    count: usize,
+    v: impl Fn(f64) -> f64,
+) -> Vec<f64> {
+    let d2 = walls_problem(n, len, 2, v);
+    let (ev, _) = solve(
+        &Problem { a: &d2.a, b: None },
+        &Selection::Index { first, count },
+        &EigenParams {
+            method: Method::Tridiagonal,
+            ..Default::default()
+        },
+    )
+    .unwrap();
+    ev.values
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(64))]
+    #[test]
+    fn guided_from_order2_guesses_agrees_with_dense(
+        n in 200usize..=600,
+        order in prop::sample::select(vec![4u32, 6, 8, 0]),
+        amp in 0.0f64..1.5,
+        waves in 1usize..=2,
+        phase in 0.0f64..6.0,
+        first_frac in 0.0f64..1.0,
+        count in 1usize..=8,
+    ) {
+        // well-resolved low levels: the order-2 error (k h)^2 / 12 relative is
+        // far below the level spacing ~ 2 / j relative for j <= n / 20
+        let len = 20.0;
+        let first = (first_frac * (n / 20 - count) as f64) as usize;
+        let pot = |x: f64| amp * (2.0 * PI * waves as f64 * x / len + phase).cos();
+        let disc = walls_problem(n, len, order, pot);
+        let pr = Problem { a: &disc.a, b: disc.b.as_ref() };
+        let params = EigenParams {
+            method: Method::Guided,
+            guesses: Some(order2_values(n, len, first, count, pot)),
+            ..Default::default()
+        };
+        let (ev, info) = solve(&pr, &Selection::Index { first, count }, &params).unwrap();
+        let (vals, _) = dense_eigen(&pr).unwrap();
+        let tol = 64.0 * f64::EPSILON * disc.a.norm_one();
+        prop_assert_eq!(info.method, Method::Guided);
+        prop_assert_eq!(info.inertia_below, first + count);
+        prop_assert_eq!(ev.first, first);
+        prop_assert_eq!(ev.values.len(), count);
+        for (j, &e) in ev.values.iter().enumerate() {
+            prop_assert!((e - vals[first + j]).abs() <= tol, "level {} {} vs {}", first + j, e, vals[first + j]);
+        }
+        prop_assert!(info.residual_ratio < 30.0, "res {}", info.residual_ratio);
+        prop_assert!(info.orthogonality_ratio < 30.0, "orth {}", info.orthogonality_ratio);
+    }
+}
+
+#[test]
+fn guided_with_wrong_guesses_still_returns_the_window() {
+    let (n, len) = (500, 20.0);
+    let pot = |x: f64| 0.8 * (2.0 * PI * x / len).cos();
+    for order in [4u32, 8, 0] {
+        let disc = walls_problem(n, len, order, pot);
+        let pr = Problem {
+            a: &disc.a,
+            b: disc.b.as_ref(),
+        };
+        let (vals, _) = dense_eigen(&pr).unwrap();
+        let tol = 64.0 * f64::EPSILON * disc.a.norm_one();
+        let (first, count) = (6, 5);
+        let right = order2_values(n, len, first, count, pot);
+        let shifted_up = order2_values(n, len, first + 1, count, pot);
+        let shifted_down = order2_values(n, len, first - 1, count, pot);
+        let mut doubled = right.clone();
+        doubled[2] = doubled[1]; // level first + 2 missing, first + 1 twice
+        let mut lost = right.clone();
+        lost[count - 1] = 1e6; // far above the spectrum of interest
+        for (case, guesses, want) in [
+            ("right", right, Method::Guided),
+            ("up", shifted_up, Method::ShiftInvert),
+            ("down", shifted_down, Method::ShiftInvert),
+            ("doubled", doubled, Method::ShiftInvert),
+            ("lost", lost, Method::ShiftInvert),
+        ] {
+            let params = EigenParams {
+                method: Method::Guided,
+                guesses: Some(guesses),
+                ..Default::default()
+            };
+            let (ev, info) = solve(&pr, &Selection::Index { first, count }, &params).unwrap();
+            assert_eq!(info.method, want, "order {order} {case}");
+            assert_eq!(info.inertia_below, first + count);
+            check_ratios(&info);
+            for (j, &e) in ev.values.iter().enumerate() {
+                assert!(
+                    (e - vals[first + j]).abs() <= tol,
+                    "order {order} {case} level {j}: {e} vs {}",
+                    vals[first + j]
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn guided_auto_choice_and_errors() {
+    let (n, len) = (400, 20.0);
+    let pot = |x: f64| 0.5 * (2.0 * PI * x / len).sin();
+    let disc = walls_problem(n, len, 6, pot);
+    let pr = Problem {
+        a: &disc.a,
+        b: None,
+    };
+    let sel = Selection::Index { first: 2, count: 3 };
+    let guesses = order2_values(n, len, 2, 3, pot);
+    // Auto with guesses above the dense limit takes the guided path
+    let auto = EigenParams {
+        guesses: Some(guesses.clone()),
+        dense_limit: 100,
+        ..Default::default()
+    };
+    assert_eq!(solve(&pr, &sel, &auto).unwrap().1.method, Method::Guided);
+    // guided without guesses, with a wrong number of them, or for Below: refused
+    for (guesses, selection) in [
+        (None, sel),
+        (Some(guesses[..2].to_vec()), sel),
+        (Some(guesses.clone()), Selection::Below { energy: 1.0 }),
+    ] {
+        let params = EigenParams {
+            method: Method::Guided,
+            guesses,
+            ..Default::default()
+        };
+        assert!(matches!(
+            solve(&pr, &selection, &params),
+            Err(EigenError::Shape { .. })
+        ));
+    }
+}
+
+#[test]
+fn guided_result_does_not_depend_on_thread_count() {
+    let (n, len) = (3000, 40.0);
+    let pot = |x: f64| (2.0 * PI * 3.0 * x / len).cos();
+    let disc = walls_problem(n, len, 8, pot);
+    let pr = Problem {
+        a: &disc.a,
+        b: None,
+    };
+    let sel = Selection::Index {
+        first: 30,
+        count: 6,
+    };
+    let params = EigenParams {
+        guesses: Some(order2_values(n, len, 30, 6, pot)),
+        ..Default::default()
+    };
+    let run = |threads: usize| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| solve(&pr, &sel, &params).unwrap())
+    };
+    let (one, info) = run(1);
+    assert_eq!(info.method, Method::Guided);
+    let (three, _) = run(3);
+    assert_eq!(one, three);
+}
