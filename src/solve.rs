@@ -311,15 +311,17 @@ pub fn roundoff_floor(model: &Model, grid: &Grid, v: &[f64]) -> f64 {
     f64::EPSILON * (model.kinetic() / (grid.spacing * grid.spacing) * sum + vmax)
 }
 
-/// The energies of levels `first..first + count` (0-based) on `grid`, with
-/// nothing else computed: the coarse grids of an error estimate.
-pub fn energies_on(
-    model: &Model,
-    grid: &Grid,
-    first: usize,
-    count: usize,
-    params: &EigenParams,
-) -> Result<Vec<f64>, SolveError> {
+/// The grid's positions, the potential's jumps inside the domain, V at the
+/// positions (the mean of both sides at a jump on a grid point) and the
+/// discretised Hamiltonian: what every solve on a grid starts from.
+struct Discretised {
+    x: Vec<f64>,
+    edges: Vec<f64>,
+    v: Vec<f64>,
+    disc: hamiltonian::Discretisation,
+}
+
+fn discretise(model: &Model, grid: &Grid) -> Result<Discretised, SolveError> {
     let x = grid.positions();
     let edges = interior_edges(model);
     let v = model
@@ -332,6 +334,19 @@ pub fn energies_on(
         model.grid.order,
         model.grid.scheme,
     );
+    Ok(Discretised { x, edges, v, disc })
+}
+
+/// The energies of levels `first..first + count` (0-based) on `grid`, with
+/// nothing else computed: the coarse grids of an error estimate.
+pub fn energies_on(
+    model: &Model,
+    grid: &Grid,
+    first: usize,
+    count: usize,
+    params: &EigenParams,
+) -> Result<Vec<f64>, SolveError> {
+    let Discretised { v, disc, .. } = discretise(model, grid)?;
     let problem = Problem {
         a: &disc.a,
         b: disc.b.as_ref(),
@@ -418,21 +433,10 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
             bytes,
         });
     }
-    let x = grid.positions();
-    let edges = interior_edges(model);
-    let v = model
-        .potential
-        .sample_with_edges(&x, &edges, 1e-9 * grid.spacing)?;
-    let disc = hamiltonian::build(
-        grid,
-        &v,
-        model.kinetic(),
-        model.grid.order,
-        model.grid.scheme,
-    );
+    let Discretised { x, edges, v, disc } = discretise(model, grid)?;
     let vmin = v.iter().copied().fold(f64::INFINITY, f64::min);
     let vmax = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-    let norm = norm1(&disc.a);
+    let norm = disc.a.norm_one();
     let rounding = ROUNDING_FACTOR * f64::EPSILON * norm;
     let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
     // An infinite norm (a spacing so small that 1/h^2 overflows) must be
@@ -782,45 +786,6 @@ pub const ROUNDING_WARNING: f64 = 1e-6;
 /// Kahan, SIAM J. Numer. Anal. 7, 1 (1970)).
 pub const DEGENERATE_FACTOR: f64 = 1e2;
 
-/// `y = M x` for a symmetric banded matrix, reading its bands exactly as
-/// [`SymBanded::to_dense`](crate::eigen::SymBanded::to_dense) does.
-fn banded_mul(m: &eigen::SymBanded, x: &[f64]) -> Vec<f64> {
-    let n = m.n;
-    let mut y = vec![0.0; n];
-    for (d, band) in m.bands.iter().enumerate() {
-        for (i, &a) in band.iter().enumerate() {
-            let j = if m.wrap { (i + d) % n } else { i + d };
-            if j >= n {
-                continue;
-            }
-            y[i] += a * x[j];
-            if d > 0 {
-                y[j] += a * x[i];
-            }
-        }
-    }
-    y
-}
-
-/// `||M||_1`, the largest absolute column sum of a symmetric banded matrix.
-fn norm1(m: &eigen::SymBanded) -> f64 {
-    let n = m.n;
-    let mut sums = vec![0.0f64; n];
-    for (d, band) in m.bands.iter().enumerate() {
-        for (i, &a) in band.iter().enumerate() {
-            let j = if m.wrap { (i + d) % n } else { i + d };
-            if j >= n {
-                continue;
-            }
-            sums[i] += a.abs();
-            if d > 0 {
-                sums[j] += a.abs();
-            }
-        }
-    }
-    sums.into_iter().fold(0.0, f64::max)
-}
-
 /// The residual ratio of one returned pair (see [`RESIDUAL_LIMIT`]); NaN or
 /// infinite when the pair holds a value that is not finite.
 fn residual_ratio(
@@ -829,16 +794,11 @@ fn residual_ratio(
     energy: f64,
     z: &[f64],
 ) -> f64 {
-    let az = banded_mul(a, z);
-    let (bz, scale) = match b {
-        Some(b) => (banded_mul(b, z), norm1(a) + energy.abs() * norm1(b)),
-        None => (z.to_vec(), norm1(a)),
+    let scale = match b {
+        Some(b) => a.norm_one() + energy.abs() * b.norm_one(),
+        None => a.norm_one(),
     };
-    let r: f64 = az
-        .iter()
-        .zip(&bz)
-        .map(|(p, q)| (p - energy * q).abs())
-        .sum();
+    let r = eigen::diagnostics::residual_norm1(&Problem { a, b }, energy, z);
     let length = z.iter().map(|x| x * x).sum::<f64>().sqrt();
     r / (scale.max(f64::MIN_POSITIVE) * z.len() as f64 * f64::EPSILON * length)
 }
@@ -907,7 +867,8 @@ mod tests {
             let m = banded(wrap);
             let dense = m.to_dense();
             let x: Vec<f64> = (0..m.n).map(|i| (i as f64).sin() + 0.3).collect();
-            let y = banded_mul(&m, &x);
+            let mut y = vec![0.0; m.n];
+            m.mul_vec(&x, &mut y);
             let want = &dense * nalgebra::DVector::from_vec(x.clone());
             for (a, b) in y.iter().zip(want.iter()) {
                 assert!((a - b).abs() < 1e-12, "{wrap}: {a} vs {b}");
@@ -915,7 +876,7 @@ mod tests {
             let col_max = (0..m.n)
                 .map(|j| dense.column(j).iter().map(|v| v.abs()).sum::<f64>())
                 .fold(0.0, f64::max);
-            assert!((norm1(&m) - col_max).abs() < 1e-12);
+            assert!((m.norm_one() - col_max).abs() < 1e-12);
         }
     }
 

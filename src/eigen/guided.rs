@@ -49,19 +49,7 @@ pub const MAX_STEPS: usize = 6;
 pub const REFACTOR_AFTER: usize = 3;
 
 /// Result of the guided path.
-#[derive(Debug, Clone)]
-pub struct GuidedOutput {
-    /// Ascending eigenvalues.
-    pub values: Vec<f64>,
-    /// B-orthonormal eigenvectors.
-    pub vectors: Vec<Vec<f64>>,
-    /// Inverse-iteration steps in total.
-    pub iterations: usize,
-    /// LDL^T factorisations (the two inertia counts included).
-    pub factorizations: usize,
-    /// Inertia count at the upper check point (`first + count`).
-    pub inertia_below: usize,
-}
+pub type GuidedOutput = super::params::PathOutput;
 
 /// Deterministic start vector for level `j`: splitmix64 stream, entries in (-1, 1).
 fn start_vector(n: usize, j: usize) -> Vec<f64> {

@@ -41,5 +41,5 @@ mod tests;
 
 pub use error::EigenError;
 pub use matrix::{Problem, SymBanded};
-pub use params::{EigenInfo, EigenParams, Eigenpairs, Method, Selection};
+pub use params::{EigenInfo, EigenParams, Eigenpairs, Method, PathOutput, Selection};
 pub use solve::{count_below, solve};

@@ -117,3 +117,19 @@ pub struct EigenInfo {
     /// ||Z^T B Z - I||_1 / (k eps) (LAPACK DSTT21 form).
     pub orthogonality_ratio: f64,
 }
+
+/// What each eigen-method returns to [`solve`](fn@super::solve).
+#[derive(Debug, Clone)]
+pub struct PathOutput {
+    /// Ascending eigenvalues.
+    pub values: Vec<f64>,
+    /// B-orthonormal eigenvectors (unit 2-norm when B = I).
+    pub vectors: Vec<Vec<f64>>,
+    /// The method's own steps in total (Rayleigh-quotient, Lanczos or
+    /// inverse-iteration steps).
+    pub iterations: usize,
+    /// Factorisations and Sturm sweeps, inertia counts included.
+    pub factorizations: usize,
+    /// Inertia count at the upper check point of the returned window.
+    pub inertia_below: usize,
+}

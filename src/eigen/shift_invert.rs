@@ -30,19 +30,7 @@ use super::matrix::{Problem, SymBanded};
 use super::subspace::{combine, dot, project, rayleigh_ritz, subtract_combination};
 
 /// Result of the shift-invert path.
-#[derive(Debug, Clone)]
-pub struct ShiftInvertOutput {
-    /// Ascending eigenvalues.
-    pub values: Vec<f64>,
-    /// B-orthonormal eigenvectors.
-    pub vectors: Vec<Vec<f64>>,
-    /// Lanczos steps in total.
-    pub iterations: usize,
-    /// LDL^T factorisations (inertia counts included).
-    pub factorizations: usize,
-    /// Inertia count at the upper check point.
-    pub inertia_below: usize,
-}
+pub type ShiftInvertOutput = super::params::PathOutput;
 
 /// Bytes needed: the Lanczos basis of `steps` vectors, the locked vectors and
 /// one factorisation.

@@ -7,7 +7,7 @@ use super::error::EigenError;
 use super::guided::solve_guided;
 use super::ldlt::{factor, factor_guarded};
 use super::matrix::Problem;
-use super::params::{EigenInfo, EigenParams, Eigenpairs, Method, Selection};
+use super::params::{EigenInfo, EigenParams, Eigenpairs, Method, PathOutput, Selection};
 use super::shift_invert::{shift_invert_bytes, solve_shift_invert};
 use super::sturm::SturmData;
 use super::tridiagonal::{solve_tridiagonal, tridiagonal_bytes};
@@ -132,8 +132,30 @@ pub fn solve(
             limit: params.memory_limit,
         });
     }
-    let (values, vectors, iterations, factorizations, inertia_below) = if count == 0 {
-        (Vec::new(), Vec::new(), 0, 0, first)
+    // Shift-invert Lanczos: the general path, and the fallback of the others.
+    let lanczos = || {
+        solve_shift_invert(
+            problem,
+            first,
+            count,
+            params.max_lanczos,
+            params.max_restarts,
+        )
+    };
+    let PathOutput {
+        values,
+        vectors,
+        iterations,
+        factorizations,
+        inertia_below,
+    } = if count == 0 {
+        PathOutput {
+            values: Vec::new(),
+            vectors: Vec::new(),
+            iterations: 0,
+            factorizations: 0,
+            inertia_below: first,
+        }
     } else {
         match method {
             Method::Dense => {
@@ -144,8 +166,13 @@ pub fn solve(
                     Some(next) => 0.5 * (vals[count - 1] + next),
                     None => vals[count - 1] + 1.0 + vals[count - 1].abs(),
                 };
-                let ib = count_below(problem, top)?;
-                (vals, vecs, 0, 1, ib)
+                PathOutput {
+                    values: vals,
+                    vectors: vecs,
+                    iterations: 0,
+                    factorizations: 1,
+                    inertia_below: count_below(problem, top)?,
+                }
             }
             Method::Tridiagonal => {
                 match solve_tridiagonal(
@@ -155,30 +182,11 @@ pub fn solve(
                     params.residual_tol,
                     params.max_iterations,
                 ) {
-                    Ok(o) => (
-                        o.values,
-                        o.vectors,
-                        o.iterations,
-                        o.factorizations,
-                        o.inertia_below,
-                    ),
+                    Ok(o) => o,
                     // levels closer than rounding: Auto falls back to Lanczos with locking
                     Err(_) if params.method == Method::Auto => {
                         method = Method::ShiftInvert;
-                        let o = solve_shift_invert(
-                            problem,
-                            first,
-                            count,
-                            params.max_lanczos,
-                            params.max_restarts,
-                        )?;
-                        (
-                            o.values,
-                            o.vectors,
-                            o.iterations,
-                            o.factorizations,
-                            o.inertia_below,
-                        )
+                        lanczos()?
                     }
                     Err(e) => return Err(e),
                 }
@@ -186,48 +194,14 @@ pub fn solve(
             Method::Guided => {
                 let guesses = params.guesses.as_deref().unwrap_or_default();
                 if let Some(o) = solve_guided(problem, first, count, guesses)? {
-                    (
-                        o.values,
-                        o.vectors,
-                        o.iterations,
-                        o.factorizations,
-                        o.inertia_below,
-                    )
+                    o
                 } else {
                     // the guesses did not lead to a proven window
                     method = Method::ShiftInvert;
-                    let o = solve_shift_invert(
-                        problem,
-                        first,
-                        count,
-                        params.max_lanczos,
-                        params.max_restarts,
-                    )?;
-                    (
-                        o.values,
-                        o.vectors,
-                        o.iterations,
-                        o.factorizations,
-                        o.inertia_below,
-                    )
+                    lanczos()?
                 }
             }
-            _ => {
-                let o = solve_shift_invert(
-                    problem,
-                    first,
-                    count,
-                    params.max_lanczos,
-                    params.max_restarts,
-                )?;
-                (
-                    o.values,
-                    o.vectors,
-                    o.iterations,
-                    o.factorizations,
-                    o.inertia_below,
-                )
-            }
+            _ => lanczos()?,
         }
     };
     let info = EigenInfo {

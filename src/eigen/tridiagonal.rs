@@ -33,19 +33,7 @@ use super::sturm::{sturm_counts, SturmData};
 use super::subspace::{dot, rayleigh_ritz_in_place};
 
 /// Result of the tridiagonal path.
-#[derive(Debug, Clone)]
-pub struct TridiagonalOutput {
-    /// Ascending eigenvalues.
-    pub values: Vec<f64>,
-    /// Unit eigenvectors.
-    pub vectors: Vec<Vec<f64>>,
-    /// Total Rayleigh-quotient steps.
-    pub iterations: usize,
-    /// Sturm sweeps plus twisted factorisations.
-    pub factorizations: usize,
-    /// Sturm count at the upper end of the last bracket.
-    pub inertia_below: usize,
-}
+pub type TridiagonalOutput = super::params::PathOutput;
 
 /// Bytes needed for k levels of an n x n tridiagonal matrix.
 pub fn tridiagonal_bytes(n: usize, k: usize) -> usize {
