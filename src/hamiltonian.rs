@@ -18,7 +18,7 @@
 
 use crate::eigen::SymBanded;
 use crate::grid::{second_derivative_weights, Grid, Order};
-use crate::input::model::{Boundary, Scheme};
+use crate::grid::{Boundary, Scheme};
 
 /// A discretised eigenproblem `A x = E B x` and how to recover `psi` from `x`.
 #[derive(Debug, Clone)]
@@ -229,7 +229,7 @@ fn mul(m: &SymBanded, x: &[f64], y: &mut [f64]) {
 mod tests {
     use super::*;
     use crate::grid::dispersion;
-    use crate::input::model::Domain;
+    use crate::grid::Domain;
     use approx::assert_relative_eq;
     use nalgebra::DMatrix;
     use std::f64::consts::PI;

@@ -6,9 +6,10 @@ use std::time::Instant;
 use serde::Serialize;
 
 use crate::eigen::{self, EigenError, EigenParams, Method, Problem, Selection};
+use crate::grid::Boundary;
 use crate::grid::{align, Grid};
 use crate::hamiltonian;
-use crate::input::model::{Boundary, Model, Resolution};
+use crate::input::model::{Model, Resolution};
 use crate::observables::{
     self, states, Occupancy, OccupancyError, StateSummary, SumRule, Transition,
 };
@@ -379,7 +380,7 @@ fn with_order2_guesses(
     selection: &Selection,
     params: &EigenParams,
 ) -> Option<EigenParams> {
-    use crate::input::model::Scheme;
+    use crate::grid::Scheme;
     let higher = match model.grid.scheme {
         Scheme::FiniteDifference => model.grid.order.get() > 2,
         Scheme::Numerov => true,
@@ -411,8 +412,8 @@ pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solu
     let start = Instant::now();
     let p = model.grid.order.half_width();
     let needed = match model.grid.scheme {
-        crate::input::model::Scheme::FiniteDifference => 2 * p + 1,
-        crate::input::model::Scheme::Numerov => 5,
+        crate::grid::Scheme::FiniteDifference => 2 * p + 1,
+        crate::grid::Scheme::Numerov => 5,
     };
     if grid.points < needed {
         return Err(SolveError::GridTooSmall {
@@ -892,7 +893,7 @@ mod tests {
             &sol.potential,
             crate::constants::hbar2_over_2me_ev_a2(),
             crate::grid::Order::new(4).unwrap(),
-            crate::input::model::Scheme::FiniteDifference,
+            crate::grid::Scheme::FiniteDifference,
         );
         let z: Vec<f64> = sol.psi[0].iter().map(|p| p * grid.spacing.sqrt()).collect();
         let good = residual_ratio(&disc.a, None, sol.levels[0].energy, &z);

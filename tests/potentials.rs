@@ -4,7 +4,8 @@ mod common;
 
 use std::path::{Path, PathBuf};
 
-use chainwell::input::{self, model::Boundary};
+use chainwell::grid::Boundary;
+use chainwell::input;
 use chainwell::solve;
 
 fn curated() -> Vec<PathBuf> {

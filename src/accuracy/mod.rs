@@ -18,7 +18,8 @@ pub mod richardson;
 use serde::Serialize;
 
 use crate::eigen::EigenParams;
-use crate::input::model::{Model, Scheme};
+use crate::grid::Scheme;
+use crate::input::model::Model;
 use crate::solve::{self, Solution, SolveError, SolveOptions};
 
 pub use richardson::{analyse, observed_order, LevelError};

@@ -28,8 +28,10 @@ use serde::Serialize;
 
 use super::CellProblem;
 use crate::grid::{second_derivative_weights, Grid};
+use crate::grid::{Boundary, Domain, Scheme};
 use crate::input::check::DEFAULT_SPACING_ANGSTROM;
-use crate::input::model::{Boundary, ChainSpec, Domain, Model, Resolution, Scheme};
+use crate::input::model::{Model, Resolution};
+use crate::potential::chain::ChainSpec;
 use crate::potential::{chain, NonFinite, Potential};
 use crate::solve::grid_for;
 

@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use super::CommandError;
 use crate::accuracy::Convergence;
-use crate::input::model::Boundary;
+use crate::grid::Boundary;
 use crate::input::Model;
 use crate::observables::Spectrum;
 use crate::plot::{

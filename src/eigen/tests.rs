@@ -427,7 +427,7 @@ fn walls_problem(
     order: u32,
     v: impl Fn(f64) -> f64,
 ) -> crate::hamiltonian::Discretisation {
-    use crate::input::model::{Boundary, Scheme};
+    use crate::grid::{Boundary, Scheme};
     let grid = crate::grid::Grid {
         from: 0.0,
         spacing: len / (n as f64 + 1.0),

@@ -9,7 +9,7 @@
 //! whatever the stencil's order. The grid keeps this property when the
 //! spacing is halved, so a whole Richardson sequence stays aligned.
 
-use crate::input::model::{Boundary, Domain};
+use crate::grid::{Boundary, Domain};
 
 /// How far above the wanted number of steps the search may go (10 %).
 pub const SEARCH_SLACK: f64 = 0.10;

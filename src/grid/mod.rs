@@ -10,7 +10,45 @@ mod stencil;
 
 pub use stencil::{dispersion, second_derivative_weights, Order};
 
-use crate::input::model::{Boundary, Domain};
+use serde::Serialize;
+
+/// Boundary condition of the domain.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Boundary {
+    /// `psi = 0` at both ends (a box with hard walls).
+    Walls,
+    /// A ring: `psi(from) = psi(to)`.
+    Periodic,
+}
+
+/// The interval the particle lives on.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Domain {
+    /// Left end, Å.
+    pub from: f64,
+    /// Right end, Å (`to > from`).
+    pub to: f64,
+    /// Walls or a ring.
+    pub boundary: Boundary,
+}
+
+impl Domain {
+    /// Length `to - from`, Å.
+    pub fn length(&self) -> f64 {
+        self.to - self.from
+    }
+}
+
+/// The discretisation of the kinetic energy.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Scheme {
+    /// Central finite differences of the grid's order.
+    FiniteDifference,
+    /// Numerov's fourth-order scheme in matrix form.
+    Numerov,
+}
 
 /// A uniform grid of unknowns.
 #[derive(Debug, Clone, PartialEq)]

@@ -5,38 +5,11 @@
 
 use serde::Serialize;
 
-use crate::grid::Order;
+use crate::grid::{Domain, Order, Scheme};
 use crate::input::error::Location;
+use crate::potential::chain::ChainSpec;
 use crate::potential::Potential;
 use crate::units::Units;
-
-/// Boundary condition of the domain.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Boundary {
-    /// `psi = 0` at both ends (a box with hard walls).
-    Walls,
-    /// A ring: `psi(from) = psi(to)`.
-    Periodic,
-}
-
-/// The interval the particle lives on.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct Domain {
-    /// Left end, Å.
-    pub from: f64,
-    /// Right end, Å (`to > from`).
-    pub to: f64,
-    /// Walls or a ring.
-    pub boundary: Boundary,
-}
-
-impl Domain {
-    /// Length `to - from`, Å.
-    pub fn length(&self) -> f64 {
-        self.to - self.from
-    }
-}
 
 /// How the grid is chosen.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -48,16 +21,6 @@ pub enum Resolution {
     Spacing(f64),
     /// Refine until every level's error estimate is below this (relative).
     Tolerance(f64),
-}
-
-/// The discretisation of the kinetic energy.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Scheme {
-    /// Central finite differences of the grid's order.
-    FiniteDifference,
-    /// Numerov's fourth-order scheme in matrix form.
-    Numerov,
 }
 
 /// `[grid]`, checked.
@@ -87,52 +50,6 @@ pub struct LevelSpec {
     /// Whether `electrons` was written in the input (or an override) rather
     /// than taken from a chain's one-per-atom default.
     pub electrons_given: bool,
-}
-
-/// A `[[chain.site]]`, checked.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct Site {
-    /// Atom number, 1 ..= bonds + 1.
-    pub atom: usize,
-    /// Height of the Gaussian, eV.
-    pub height: f64,
-    /// Standard deviation, Å.
-    pub width: f64,
-}
-
-/// `[chain]`, checked: kept beside the terms it made, for reports and for
-/// the repeat unit of `bands`.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct ChainSpec {
-    /// Bonds along the conjugated path (atoms = bonds + 1).
-    pub bonds: usize,
-    /// Average bond length, Å.
-    pub bond_length: f64,
-    /// How far the box reaches beyond each terminal atom, Å.
-    pub end_extension: f64,
-    /// Amplitude of the bond-alternation ripple, eV.
-    pub alternation: f64,
-    /// Height of the end-cap steps, eV.
-    pub end_cap_height: f64,
-    /// Width of the end-cap steps, Å.
-    pub end_cap_width: f64,
-    /// Heteroatom or substituent sites.
-    pub sites: Vec<Site>,
-}
-
-impl ChainSpec {
-    /// Number of atoms, `bonds + 1`.
-    pub fn atoms(&self) -> usize {
-        self.bonds + 1
-    }
-    /// Box length `bonds * bond_length + 2 * end_extension`, Å.
-    pub fn box_length(&self) -> f64 {
-        self.bonds as f64 * self.bond_length + 2.0 * self.end_extension
-    }
-    /// Position of atom `a` (1-based), Å from the left end of the box.
-    pub fn atom_position(&self, a: usize) -> f64 {
-        self.end_extension + (a as f64 - 1.0) * self.bond_length
-    }
 }
 
 /// `[spectrum]`, checked.

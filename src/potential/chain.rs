@@ -11,8 +11,56 @@
 //! sinusoidal correction). The ripple covers the whole box, which keeps V(x)
 //! smooth inside it; it vanishes at every atom position.
 
+use serde::Serialize;
+
 use super::Term;
-use crate::input::model::{Boundary, ChainSpec, Domain};
+use crate::grid::{Boundary, Domain};
+
+/// A `[[chain.site]]`, checked.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Site {
+    /// Atom number, 1 ..= bonds + 1.
+    pub atom: usize,
+    /// Height of the Gaussian, eV.
+    pub height: f64,
+    /// Standard deviation, Å.
+    pub width: f64,
+}
+
+/// `[chain]`, checked: kept beside the terms it made, for reports and for
+/// the repeat unit of `bands`.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ChainSpec {
+    /// Bonds along the conjugated path (atoms = bonds + 1).
+    pub bonds: usize,
+    /// Average bond length, Å.
+    pub bond_length: f64,
+    /// How far the box reaches beyond each terminal atom, Å.
+    pub end_extension: f64,
+    /// Amplitude of the bond-alternation ripple, eV.
+    pub alternation: f64,
+    /// Height of the end-cap steps, eV.
+    pub end_cap_height: f64,
+    /// Width of the end-cap steps, Å.
+    pub end_cap_width: f64,
+    /// Heteroatom or substituent sites.
+    pub sites: Vec<Site>,
+}
+
+impl ChainSpec {
+    /// Number of atoms, `bonds + 1`.
+    pub fn atoms(&self) -> usize {
+        self.bonds + 1
+    }
+    /// Box length `bonds * bond_length + 2 * end_extension`, Å.
+    pub fn box_length(&self) -> f64 {
+        self.bonds as f64 * self.bond_length + 2.0 * self.end_extension
+    }
+    /// Position of atom `a` (1-based), Å from the left end of the box.
+    pub fn atom_position(&self, a: usize) -> f64 {
+        self.end_extension + (a as f64 - 1.0) * self.bond_length
+    }
+}
 
 /// The domain and the terms a chain stands for.
 pub fn build(chain: &ChainSpec) -> (Domain, Vec<Term>) {
@@ -60,7 +108,6 @@ pub fn build(chain: &ChainSpec) -> (Domain, Vec<Term>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::input::model::Site;
     use approx::assert_abs_diff_eq;
 
     fn hexatriene_like() -> ChainSpec {
