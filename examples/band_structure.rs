@@ -5,8 +5,9 @@
 
 use std::path::Path;
 
-use chainwell::bands::{band_edges, band_structure, cell_from_model, gaps};
+use chainwell::bands::{band_edges, band_structure, gaps};
 use chainwell::input;
+use chainwell::pipeline::cell::cell_from_model;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let text = "[chain]\nbonds = 10\nbond_length = 1.40\nalternation = 1.0\n[grid]\nspacing = 0.02\norder = 8\n";

@@ -6,7 +6,7 @@
 use std::path::Path;
 
 use chainwell::input;
-use chainwell::solve;
+use chainwell::pipeline;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let text = r#"
@@ -29,7 +29,7 @@ d = 1.2
 w = 3.0
 "#;
     let (model, _) = input::load_str("formula.toml", text.into(), Path::new("."), &[])?;
-    let sol = solve::solve(&model)?;
+    let sol = pipeline::solve(&model)?;
     for l in &sol.levels {
         println!(
             "n = {:>2}  E = {:>10.5} eV  (+- {:.1e})  nodes {}",

@@ -7,7 +7,7 @@
 use std::path::Path;
 
 use chainwell::input::{self, Override};
-use chainwell::solve;
+use chainwell::pipeline;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let base = "[chain]\nbonds = 3\nbond_length = 1.40\nalternation = 0.8\n[grid]\nspacing = 0.02\norder = 6\n";
@@ -18,7 +18,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     for bonds in (3..=21).step_by(2) {
         let ov = [Override::parse(&format!("chain.bonds={bonds}"))?];
         let (model, _) = input::load_str("series.toml", base.into(), Path::new("."), &ov)?;
-        let sol = solve::solve(&model)?;
+        let sol = pipeline::solve(&model)?;
         let occ = sol
             .occupancy
             .as_ref()

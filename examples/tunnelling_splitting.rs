@@ -9,7 +9,7 @@
 use std::path::Path;
 
 use chainwell::input::{self, Override};
-use chainwell::solve;
+use chainwell::pipeline;
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let base = "[particle]\nmass = 1836.15\n[domain]\nfrom = -1.2\nto = 1.2\n[grid]\npoints = 800\norder = 8\n\
@@ -22,7 +22,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     for barrier in [0.1, 0.2, 0.3, 0.4, 0.5, 0.6] {
         let ov = [Override::parse(&format!("term.1.constants.D={barrier}"))?];
         let (model, _) = input::load_str("wells.toml", base.into(), Path::new("."), &ov)?;
-        let sol = solve::solve(&model)?;
+        let sol = pipeline::solve(&model)?;
         let (a, b) = (&sol.levels[0], &sol.levels[1]);
         let err = a.error_estimate.unwrap_or(0.0) + b.error_estimate.unwrap_or(0.0);
         println!(

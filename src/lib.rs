@@ -23,14 +23,13 @@
 //! count = 3
 //! "#;
 //! let (model, _) = input::load_str("box.toml", text.into(), std::path::Path::new("."), &[]).unwrap();
-//! let sol = chainwell::solve::solve(&model).unwrap();
+//! let sol = chainwell::pipeline::solve(&model).unwrap();
 //! // The ideal box: E_n = n^2 h^2 / (8 m L^2).
 //! let e1 = sol.levels[0].box_energy.unwrap();
 //! assert!((sol.levels[0].energy / e1 - 1.0).abs() < 1e-8);
 //! ```
 #![deny(missing_docs)]
 
-pub mod accuracy;
 pub mod bands;
 pub mod commands;
 pub mod constants;
@@ -40,9 +39,9 @@ pub mod hamiltonian;
 pub mod input;
 pub mod observables;
 pub mod output;
+pub mod pipeline;
 pub mod plot;
 pub mod potential;
 pub mod report;
-pub mod solve;
 pub mod study;
 pub mod units;

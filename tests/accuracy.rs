@@ -104,7 +104,7 @@ fn unreachable_tolerance_is_refused_naming_the_limit() {
         "[domain]\nfrom = -8.0\nto = 8.0\n[grid]\ntolerance = 1e-12\norder = 2\nmax_points = 3000\n\
          [levels]\ncount = 3\n[[term]]\nshape = \"harmonic\"\ncenter = 0.0\nstiffness = 10.0\n",
     );
-    let e = chainwell::solve::solve(&m).unwrap_err().to_string();
+    let e = chainwell::pipeline::solve(&m).unwrap_err().to_string();
     assert!(
         e.contains("grid.tolerance") && (e.contains("max_points") || e.contains("round-off")),
         "{e}"

@@ -7,7 +7,8 @@ use std::f64::consts::PI;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
-use chainwell::bands::{cell_from_model, solve_k};
+use chainwell::bands::solve_k;
+use chainwell::pipeline::cell::cell_from_model;
 use common::{bin, t_e};
 use proptest::prelude::*;
 use serde_json::Value;
@@ -174,7 +175,7 @@ order = 6
 count = 4
 ";
 
-fn lopsided_cell() -> chainwell::bands::Cell {
+fn lopsided_cell() -> chainwell::pipeline::cell::Cell {
     let (model, _) =
         chainwell::input::load_str("lopsided.toml", LOPSIDED.into(), Path::new("."), &[])
             .unwrap_or_else(|e| panic!("{}", e.render()));

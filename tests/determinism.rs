@@ -111,7 +111,7 @@ fn library_solves_repeat_exactly() {
     let set = [chainwell::input::Override::parse("grid.points=200").unwrap()];
     let doc = || {
         let (model, source) = chainwell::input::load(&path, &set).unwrap();
-        let sol = chainwell::solve::solve(&model).unwrap();
+        let sol = chainwell::pipeline::solve(&model).unwrap();
         serde_json::to_string(&chainwell::report::json::solve_document(
             &model, &source, &sol, false,
         ))

@@ -55,7 +55,7 @@ fn a_tunnelling_pair_split_by_1e_8_comes_back_whole() {
 #[test]
 fn states_below_any_energy_equal_the_inertia_count() {
     let m = model(WELLS);
-    let sol = chainwell::solve::solve(&m).unwrap();
+    let sol = chainwell::pipeline::solve(&m).unwrap();
     let disc = hamiltonian::build(
         &sol.grid,
         &sol.potential,

@@ -53,7 +53,7 @@ fn box_dipoles_match_the_closed_form() {
     assert!(checked >= 8);
 }
 
-fn oscillator() -> chainwell::solve::Solution {
+fn oscillator() -> chainwell::pipeline::Solution {
     solve(
         "[domain]\nfrom = -8.0\nto = 8.0\n[grid]\npoints = 1600\norder = 8\n\
          [levels]\ncount = 8\n[spectrum]\nall_pairs = true\n\
@@ -117,7 +117,7 @@ fn chain_filling_and_wavelength() {
     assert!((occ.wavelength_nm.unwrap() * gap / 1_239.841_984 - 1.0).abs() < 1e-9);
     // An odd count leaves the HOMO singly occupied.
     let m = model("[chain]\nbonds = 9\n[levels]\nelectrons = 9\n[grid]\npoints = 300\n");
-    let sol = chainwell::solve::solve(&m).unwrap();
+    let sol = chainwell::pipeline::solve(&m).unwrap();
     let occ = sol.occupancy.unwrap();
     assert_eq!((occ.homo, occ.singly_occupied), (5, Some(5)));
 }
@@ -128,9 +128,9 @@ fn spectrum_integrates_back_to_the_strengths() {
         "[chain]\nbonds = 7\nalternation = 0.5\n[grid]\npoints = 500\norder = 6\n\
          [spectrum]\nshape = \"gaussian\"\nwidth = 0.25\n",
     );
-    let sol = chainwell::solve::solve(&m).unwrap();
+    let sol = chainwell::pipeline::solve(&m).unwrap();
     let total: f64 = sol.transitions.iter().map(|t| t.strength).sum();
-    let sp = chainwell::solve::spectrum(&m, &sol);
+    let sp = chainwell::pipeline::spectrum(&m, &sol);
     let back = integrated_strength(&sp);
     assert!((back / total - 1.0).abs() < 1e-3, "{back} vs {total}");
 }

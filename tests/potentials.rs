@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 
 use chainwell::grid::Boundary;
 use chainwell::input;
-use chainwell::solve;
+use chainwell::pipeline;
 
 fn curated() -> Vec<PathBuf> {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("potentials");
@@ -37,7 +37,7 @@ fn there_are_at_least_ten_curated_inputs_with_headers() {
 fn every_curated_input_solves() {
     for f in curated() {
         let (model, _) = input::load(&f, &[]).unwrap_or_else(|e| panic!("{}", e.render()));
-        let sol = solve::solve(&model).unwrap_or_else(|e| panic!("{}: {e}", f.display()));
+        let sol = pipeline::solve(&model).unwrap_or_else(|e| panic!("{}: {e}", f.display()));
         assert!(!sol.levels.is_empty(), "{}", f.display());
         for w in sol.levels.windows(2) {
             assert!(w[0].energy <= w[1].energy, "{}: not ascending", f.display());

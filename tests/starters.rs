@@ -21,7 +21,7 @@ fn every_starter_loads_and_solves() {
         let ov = [Override::parse("grid.points=300").unwrap()];
         let (model, _) =
             input::load(&path, &ov).unwrap_or_else(|e| panic!("{kind}: {}", e.render()));
-        let sol = chainwell::solve::solve(&model).unwrap_or_else(|e| panic!("{kind}: {e}"));
+        let sol = chainwell::pipeline::solve(&model).unwrap_or_else(|e| panic!("{kind}: {e}"));
         assert!(!sol.levels.is_empty(), "{kind}");
     }
     std::fs::remove_dir_all(&dir).unwrap();

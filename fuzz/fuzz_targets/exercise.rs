@@ -11,7 +11,7 @@ use chainwell::commands::solve::solve_error;
 use chainwell::eigen::EigenParams;
 use chainwell::grid::Grid;
 use chainwell::input::{self, Override};
-use chainwell::{report, solve};
+use chainwell::{pipeline, report};
 
 /// Most unknowns a fuzzed input is solved on, to keep each run cheap.
 pub const MAX_POINTS: usize = 40;
@@ -38,11 +38,11 @@ pub fn exercise_in(data: &[u8], base_dir: &Path) -> Result<String, String> {
         .map_err(|e| format!("error: {e}"))?;
     let (model, source) = input::load_str("fuzz.toml", text.to_string(), base_dir, &overrides)
         .map_err(|e| e.render())?;
-    let mut grid = solve::grid_for(&model);
+    let mut grid = pipeline::grid_for(&model);
     if grid.points > MAX_POINTS {
         grid = Grid::with_points(&model.domain, MAX_POINTS);
     }
-    let sol = solve::solve_on(&model, &grid, &EigenParams::default())
+    let sol = pipeline::solve_on(&model, &grid, &EigenParams::default())
         .map_err(|e| solve_error(&model, &source, e).to_string())?;
     let _ = report::table::solve_table(&model, &sol);
     let doc = report::json::solve_document(&model, &source, &sol, false);

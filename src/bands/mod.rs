@@ -16,23 +16,14 @@
 //! - [`edges`]: band bottoms and tops with refined positions, effective masses
 //!   `m* / m_e = hbar^2 / (m_e d^2E/dk^2)` ([`band_edges`]) and the gaps
 //!   between consecutive bands ([`gaps`]).
-//! - [`cell`]: the cell of an input ([`cell_from_model`]): its explicit
-//!   domain, or the two-bond repeat unit of its `[chain]`.
-//! - [`degeneracy`]: grouping of (near-)degenerate levels, e.g. the `+-j`
-//!   pairs of a ring, with a printable summary ([`group_levels`],
-//!   [`summarize_levels`], [`Degeneracy`]).
 //!
 //! Units: length in ångström, wavevector in 1/Å, energy in eV, masses in
 //! electron masses.
 
 pub mod bloch;
-pub mod cell;
-pub mod degeneracy;
 pub mod edges;
 
 pub use bloch::{band_structure, bloch_hamiltonian, solve_k, BandStructure, CellProblem};
-pub use cell::{cell_from_model, Cell, CellSource};
-pub use degeneracy::{group_levels, summarize_levels, Degeneracy};
 pub use edges::{band_edges, gaps, BandEdge, Gap};
 
 /// Errors of the band solver.

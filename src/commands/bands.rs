@@ -26,13 +26,11 @@ use serde_json::{json, Map, Value};
 
 use super::solve::solve_error;
 use super::CommandError;
-use crate::bands::{
-    self, band_edges, band_structure, cell_from_model, BandEdge, BandStructure, BandsError, Cell,
-    CellSource, Gap,
-};
+use crate::bands::{self, band_edges, band_structure, BandEdge, BandStructure, BandsError, Gap};
 use crate::eigen::EigenParams;
 use crate::grid::Grid;
 use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::pipeline::cell::{cell_from_model, Cell, CellSource};
 use crate::report::json::{input_echo, program};
 
 /// Wavevectors used when `--kpoints` is not given.
@@ -210,7 +208,7 @@ pub fn compute(
         solve_error(
             &model,
             &source,
-            crate::solve::SolveError::NonFinitePotential(e),
+            crate::pipeline::SolveError::NonFinitePotential(e),
         )
     })?;
     let mut warnings = cell.warnings.clone();
@@ -350,7 +348,7 @@ fn finite_chain(
     }
     let (model, source) = input::load(path, &overrides)?;
     let grid = Grid::with_spacing(&model.domain, spacing);
-    let sol = crate::solve::solve_on(&model, &grid, &EigenParams::default())
+    let sol = crate::pipeline::solve_on(&model, &grid, &EigenParams::default())
         .map_err(|e| solve_error(&model, &source, e))?;
     let occ = sol.occupancy.as_ref().ok_or_else(|| {
         CommandError::Compute(format!("the chain of {bonds} bonds was not filled"))

@@ -8,10 +8,10 @@ use serde_json::json;
 
 use super::solve::solve_error;
 use super::CommandError;
-use crate::accuracy::{self, Convergence};
 use crate::eigen::EigenParams;
 use crate::input::{self, Model, Override};
 use crate::report;
+use crate::study::converge::{self, Convergence};
 
 /// Options of `chainwell converge`.
 #[derive(Debug, Clone)]
@@ -29,7 +29,7 @@ pub struct ConvergeOptions {
 /// Runs the study and returns the model and its result.
 pub fn study(path: &Path, opts: &ConvergeOptions) -> Result<(Model, Convergence), CommandError> {
     let (model, source) = input::load(path, &opts.overrides)?;
-    let conv = accuracy::converge(&model, opts.grids, &EigenParams::default())
+    let conv = converge::converge(&model, opts.grids, &EigenParams::default())
         .map_err(|e| solve_error(&model, &source, e))?;
     Ok((model, conv))
 }

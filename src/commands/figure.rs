@@ -4,14 +4,14 @@
 use std::path::{Path, PathBuf};
 
 use super::CommandError;
-use crate::accuracy::Convergence;
 use crate::grid::Boundary;
 use crate::input::Model;
 use crate::observables::Spectrum;
+use crate::pipeline::Solution;
 use crate::plot::{
     self, ConvergeFigure, ErrorSeries, Figure, Size, StateLevel, StatesFigure, Stick, Style,
 };
-use crate::solve::Solution;
+use crate::study::converge::Convergence;
 
 /// `--plot` and the options that shape the figure.
 #[derive(Debug, Clone, Default)]

@@ -4,8 +4,8 @@ use std::path::Path;
 
 use super::CommandError;
 use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::pipeline::{self, Solution, SolveError};
 use crate::report;
-use crate::solve::{self, Solution, SolveError};
 
 /// Options of `chainwell solve`.
 #[derive(Debug, Clone, Default)]
@@ -76,14 +76,14 @@ pub fn solve_error(model: &Model, source: &SourceText, e: SolveError) -> Command
 /// for stderr.
 pub fn run(path: &Path, opts: &SolveOptions) -> Result<(String, Vec<String>), CommandError> {
     let (model, source) = input::load(path, &opts.overrides)?;
-    let sopts = solve::SolveOptions {
+    let sopts = pipeline::SolveOptions {
         estimate: !opts.no_estimate,
         ..Default::default()
     };
     let sol: Solution =
-        solve::solve_with(&model, &sopts).map_err(|e| solve_error(&model, &source, e))?;
+        pipeline::solve_with(&model, &sopts).map_err(|e| solve_error(&model, &source, e))?;
     if let Some(dir) = &opts.csv_dir {
-        let spectrum = solve::spectrum(&model, &sol);
+        let spectrum = pipeline::spectrum(&model, &sol);
         let files = report::csv::solve_files(&model, &sol, &spectrum);
         report::csv::write_solve_files(dir, &files).map_err(|e| {
             CommandError::Compute(format!(
@@ -94,7 +94,7 @@ pub fn run(path: &Path, opts: &SolveOptions) -> Result<(String, Vec<String>), Co
     }
     if opts.figure.path.is_some() {
         let fig = match opts.figure.kind(&["states", "density", "spectrum"])? {
-            "spectrum" => super::figure::spectrum(&sol, &solve::spectrum(&model, &sol)),
+            "spectrum" => super::figure::spectrum(&sol, &pipeline::spectrum(&model, &sol)),
             kind => super::figure::states(&model, &sol, kind == "density"),
         };
         opts.figure.render(&fig)?;

@@ -25,17 +25,21 @@
 //! * [`transitions`](mod@transitions): [`dipole`], [`transitions()`] /
 //!   [`Transition`], oscillator strengths (R. C. Hilborn, Am. J. Phys. 50, 982
 //!   (1982)) and the Thomas-Reiche-Kuhn sum [`trk_sum`] / [`SumRule`].
+//! * [`degeneracy`]: grouping of (near-)degenerate levels, e.g. the `+-j`
+//!   pairs of a ring ([`group_levels`], [`summarize_levels`], [`Degeneracy`]).
 //! * [`spectrum`]: [`absorption`] / [`Spectrum`] with [`LineShape`],
 //!   [`default_wavelength_grid`], [`integrated_strength`]
 //!   (`f = 4.319e-9 int epsilon d nu~`, Atkins' *Physical Chemistry*).
 
 pub mod boxlimit;
+pub mod degeneracy;
 pub mod occupancy;
 pub mod spectrum;
 pub mod states;
 pub mod transitions;
 
 pub use boxlimit::{box_dipole, box_energy, effective_box_length};
+pub use degeneracy::{group_levels, summarize_levels, Degeneracy};
 pub use occupancy::{fill, Occupancy, OccupancyError};
 pub use spectrum::{
     absorption, default_wavelength_grid, integrated_strength, LineShape, Spectrum,

@@ -8,7 +8,7 @@ use std::path::Path;
 use crate::input::Model;
 use crate::observables::Spectrum;
 use crate::output::write_atomic;
-use crate::solve::Solution;
+use crate::pipeline::Solution;
 
 /// The four files' contents, by file name.
 pub fn solve_files(

@@ -3,7 +3,7 @@
 use serde_json::{json, Map, Value};
 
 use crate::input::{Model, SourceText};
-use crate::solve::Solution;
+use crate::pipeline::Solution;
 
 /// Program name and version, in every document.
 pub fn program() -> Value {
@@ -66,7 +66,7 @@ pub fn levels(model: &Model, sol: &Solution) -> Value {
 
 /// The `degeneracies` array of a ring: every computed level in one group
 /// (`levels` 1-based, `energy` the group's mean, `spread` its splitting).
-pub fn degeneracies(model: &Model, groups: &[crate::bands::Degeneracy]) -> Value {
+pub fn degeneracies(model: &Model, groups: &[crate::observables::Degeneracy]) -> Value {
     let u = &model.units;
     Value::Array(
         groups
@@ -111,7 +111,7 @@ pub fn solve_document(
     );
     doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));
     doc.insert("levels".into(), levels(model, sol));
-    if let Some(groups) = crate::solve::ring_degeneracies(sol) {
+    if let Some(groups) = crate::pipeline::ring_degeneracies(sol) {
         doc.insert("degeneracies".into(), degeneracies(model, &groups));
     }
     if let Some(occ) = &sol.occupancy {

@@ -3,7 +3,7 @@
 use std::fmt::Write;
 
 use crate::input::Model;
-use crate::solve::Solution;
+use crate::pipeline::Solution;
 
 /// The table `chainwell solve` prints without `--json`.
 pub fn solve_table(model: &Model, sol: &Solution) -> String {
@@ -114,7 +114,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             sr.levels_used, sr.value
         );
     }
-    if let Some(groups) = crate::solve::ring_degeneracies(sol) {
+    if let Some(groups) = crate::pipeline::ring_degeneracies(sol) {
         ring_note(&mut s, model, &groups);
     }
     let _ = writeln!(s);
@@ -130,7 +130,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
 }
 
 /// Plain-language lines on the degenerate levels of a ring.
-fn ring_note(s: &mut String, model: &Model, groups: &[crate::bands::Degeneracy]) {
+fn ring_note(s: &mut String, model: &Model, groups: &[crate::observables::Degeneracy]) {
     let u = &model.units;
     let degenerate: Vec<_> = groups.iter().filter(|g| g.is_degenerate()).collect();
     let _ = writeln!(s);

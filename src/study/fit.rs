@@ -40,7 +40,7 @@ use super::cases::CaseValue;
 pub use super::data::{Data, DataError, DataRow};
 use super::quantity::{Quantity, QuantityError};
 use crate::input::{self, InputError, Override};
-use crate::solve::{self, SolveError};
+use crate::pipeline::{self, SolveError};
 
 /// The format name of fit documents.
 pub const FORMAT: &str = "chainwell.fit/1";
@@ -76,7 +76,7 @@ pub fn evaluate(
     let mut ovs = overrides.to_vec();
     ovs.extend_from_slice(extra);
     let (model, _) = input::load(path, &ovs).map_err(EvalError::Input)?;
-    let sol = solve::solve(&model)?;
+    let sol = pipeline::solve(&model)?;
     Ok(quantity.of(&model, &sol)?)
 }
 

@@ -7,11 +7,13 @@
 //! - [`data`]: measured series (CSV) for fits.
 //! - [`fit`]: Levenberg–Marquardt least squares of input values to data.
 //! - [`target`]: Brent's root finder for the value that gives a wanted quantity.
+//! - [`converge`]: the levels on grids whose spacing halves, observed orders.
 //! - [`checkpoint`]: Ctrl-C and progress files, so interrupted work is kept.
 //! - [`render`]: tables and tidy CSV.
 
 pub mod cases;
 pub mod checkpoint;
+pub mod converge;
 pub mod data;
 pub mod fit;
 pub mod merge;

@@ -7,7 +7,7 @@
 //! level N. Energies are in the input's energy unit.
 
 use crate::input::Model;
-use crate::solve::Solution;
+use crate::pipeline::Solution;
 
 /// A quantity read off one solve.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

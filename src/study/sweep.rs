@@ -20,8 +20,8 @@ use serde_json::{json, Map, Value};
 
 use super::cases::{Case, CaseGrid, CaseValue, Shard};
 use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::pipeline::{self, SolveError};
 use crate::report;
-use crate::solve::{self, SolveError};
 
 /// The format name of sweep documents.
 pub const FORMAT: &str = "chainwell.sweep/1";
@@ -202,7 +202,7 @@ pub fn prepare(spec: &SweepSpec) -> Result<Prepared, SweepError> {
 
 /// Solves one case into a row.
 pub fn solve_case(case: &Case, model: &Model) -> Result<SweepRow, SolveError> {
-    let sol = solve::solve(model)?;
+    let sol = pipeline::solve(model)?;
     Ok(SweepRow {
         case: case.number,
         values: case.values.clone(),

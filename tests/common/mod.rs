@@ -4,7 +4,7 @@
 use std::path::Path;
 
 use chainwell::input::{self, Model};
-use chainwell::solve::{self, Solution};
+use chainwell::pipeline::{self, Solution};
 
 /// hbar^2 / (2 m_e) in eV Å², from chainwell's CODATA module (itself checked
 /// against the published value in its unit tests).
@@ -21,7 +21,7 @@ pub fn model(text: &str) -> Model {
 
 /// Loads and solves an input given as text.
 pub fn solve(text: &str) -> Solution {
-    solve::solve(&model(text)).unwrap_or_else(|e| panic!("{e}"))
+    pipeline::solve(&model(text)).unwrap_or_else(|e| panic!("{e}"))
 }
 
 /// The path of the built `chainwell` binary.

@@ -26,14 +26,14 @@
 
 use serde::Serialize;
 
-use super::CellProblem;
+use super::grid_for;
+use crate::bands::CellProblem;
 use crate::grid::{second_derivative_weights, Grid};
 use crate::grid::{Boundary, Domain, Scheme};
 use crate::input::check::DEFAULT_SPACING_ANGSTROM;
 use crate::input::model::{Model, Resolution};
 use crate::potential::chain::ChainSpec;
 use crate::potential::{chain, NonFinite, Potential};
-use crate::solve::grid_for;
 
 /// Where a cell came from.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]

@@ -1,0 +1,110 @@
+//! Why a solve could not finish, and whether the fault lies in the input.
+
+use crate::eigen::EigenError;
+use crate::observables::OccupancyError;
+use crate::potential::NonFinite;
+
+use super::guards::{MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT};
+
+/// Why a solve could not finish.
+#[derive(Debug, thiserror::Error)]
+pub enum SolveError {
+    /// A term is not a finite number at a grid point (bad input).
+    #[error(transparent)]
+    NonFinitePotential(#[from] NonFinite),
+    /// More levels asked for than the grid has (bad input).
+    #[error("levels {first}..{last} were asked for, but a grid of {points} points has only {points} levels; raise grid.points or lower levels.count")]
+    TooManyLevels {
+        /// First level asked for (1-based).
+        first: usize,
+        /// Last level asked for (1-based).
+        last: usize,
+        /// Unknowns of the grid.
+        points: usize,
+    },
+    /// The grid is too small for the finite-difference stencil (bad input).
+    #[error("a grid of {points} points is too small for an order-{order} stencil; use at least {needed} points")]
+    GridTooSmall {
+        /// Unknowns.
+        points: usize,
+        /// Stencil order.
+        order: u32,
+        /// Fewest unknowns that work.
+        needed: usize,
+    },
+    /// The solve would need more memory than [`MEMORY_LIMIT_BYTES`] (a
+    /// computation that cannot finish here).
+    #[error("a grid of {points} points with {levels} levels would need about {:.1} GiB, above the limit of {:.0} GiB; lower grid.points (or raise grid.spacing) or levels.count", .bytes / GIB, MEMORY_LIMIT_BYTES / GIB)]
+    TooLarge {
+        /// Unknowns of the grid.
+        points: usize,
+        /// Levels asked for (at most `points`).
+        levels: usize,
+        /// The estimate, bytes.
+        bytes: f64,
+    },
+    /// Rounding in a matrix of this norm blurs every energy by more than the
+    /// domain's lowest kinetic energy: no level can be told from the next (a
+    /// computation that cannot finish).
+    #[error("the matrix's norm is {norm:.3e} eV (the potential spans {vmin:.3e}..{vmax:.3e} eV, the kinetic term reaches {kinetic:.3e} eV on this grid): rounding blurs every energy by about {rounding:.3e} eV, more than the domain's lowest box level ({scale:.3e} eV), so no level can be told from the next; subtract a constant from the potential, make it shallower, or use a coarser grid on a longer domain")]
+    IllConditioned {
+        /// `||H||_1`, eV.
+        norm: f64,
+        /// `hbar^2 / (2 m h^2)` for the grid's spacing `h`, eV.
+        kinetic: f64,
+        /// The rounding level [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+        rounding: f64,
+        /// `hbar^2/2m (pi / L)^2` for the domain's length `L`, eV.
+        scale: f64,
+        /// Lowest value of the potential on the grid, eV.
+        vmin: f64,
+        /// Highest value of the potential on the grid, eV.
+        vmax: f64,
+    },
+    /// The eigen-solver returned a pair that is not an eigenpair to working
+    /// precision (a computation that could not finish).
+    #[error("level {level} did not converge: its residual reached {residual:.3e} times eps ||H|| N (at most {RESIDUAL_LIMIT:.0e} is accepted)")]
+    NotConverged {
+        /// The level (1-based).
+        level: usize,
+        /// Its residual ratio `||H z - E z||_1 / (||H||_1 N eps)` (for the
+        /// Numerov pair, `||K z - E M z||_1 / ((||K||_1 + |E| ||M||_1) N eps)`).
+        residual: f64,
+    },
+    /// The electrons cannot be placed in the computed levels (bad input).
+    #[error(transparent)]
+    Occupancy(#[from] OccupancyError),
+    /// A tolerance cannot be met (bad input: it names why).
+    #[error("grid.tolerance = {tolerance} cannot be met: {reason}")]
+    ToleranceUnreachable {
+        /// The tolerance asked for.
+        tolerance: f64,
+        /// Why not.
+        reason: String,
+    },
+    /// Too few points for a convergence study.
+    #[error("a grid of {points} points is too coarse for a convergence study of these levels; raise grid.points")]
+    TooCoarseToConverge {
+        /// Unknowns of the finest grid.
+        points: usize,
+    },
+    /// The eigen-solver failed (a computation that could not finish).
+    #[error(transparent)]
+    Eigen(#[from] EigenError),
+}
+
+impl SolveError {
+    /// Whether the fault lies in the input (exit status 2) rather than in a
+    /// computation that could not finish (exit status 1).
+    pub fn is_input_error(&self) -> bool {
+        match self {
+            SolveError::TooLarge { .. }
+            | SolveError::IllConditioned { .. }
+            | SolveError::NotConverged { .. } => false,
+            SolveError::Eigen(e) => matches!(e, EigenError::SelectionOutOfRange { .. }),
+            _ => true,
+        }
+    }
+}
+
+const GIB: f64 = 1024.0 * 1024.0 * 1024.0;

@@ -1,0 +1,153 @@
+//! The checks a solve makes before and after the eigen-solver: memory,
+//! conditioning (rounding against the level spacing) and residuals, with the
+//! round-off floor they share.
+
+use crate::eigen::{self, Eigenpairs, Problem};
+use crate::grid::{Grid, Scheme};
+use crate::input::Model;
+
+use super::discretise::Discretised;
+use super::SolveError;
+
+/// Bytes in a GiB.
+pub const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
+
+/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
+/// machines chainwell is tested on, so that a mistyped `grid.points` is
+/// refused at once instead of exhausting the machine.
+pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
+
+/// Estimated bytes of a solve on `points` unknowns with a stencil of
+/// half-width `half_width` and `levels` levels: the banded matrix
+/// (`half_width + 1` diagonals), one vector per level, and four work
+/// vectors (positions, potential, two for the eigen-solver), in `f64`:
+/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
+/// so that it cannot overflow.
+pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
+    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
+}
+
+/// The round-off floor of eigenvalues on `grid`: `eps ||H||_1`, with
+/// `||H||_1 <= (t / h^2) sum_d |c_d| + max |V|` (any backward-stable
+/// eigen-solver is accurate to a small multiple of it; J. Demmel, Applied
+/// Numerical Linear Algebra, SIAM 1997, sec. 5.2).
+pub fn roundoff_floor(model: &Model, grid: &Grid, v: &[f64]) -> f64 {
+    let c = crate::grid::second_derivative_weights(model.grid.order);
+    let sum: f64 = c[0].abs() + 2.0 * c[1..].iter().map(|x| x.abs()).sum::<f64>();
+    let vmax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+    f64::EPSILON * (model.kinetic() / (grid.spacing * grid.spacing) * sum + vmax)
+}
+
+/// Energies are blurred by rounding by about `ROUNDING_FACTOR * eps *
+/// ||H||_1`: LAPACK's error bounds for computed symmetric eigenvalues are of
+/// the form `p(n) eps ||H||` with a modestly growing `p(n)` (E. Anderson et
+/// al., *LAPACK Users' Guide*, 3rd ed., SIAM 1999, sec. 4.7); 10 is a
+/// common practice, no source.
+pub const ROUNDING_FACTOR: f64 = 10.0;
+
+/// Largest residual ratio `||H z - E z||_1 / (||H||_1 N eps)` accepted for a
+/// returned eigenpair. LAPACK's tests fail a routine above 30 (the DSTT21
+/// threshold); a pair that did not converge is many orders above that. 1e4
+/// leaves a wide margin (common practice, no source).
+pub const RESIDUAL_LIMIT: f64 = 1e4;
+
+/// The residual ratio of one returned pair (see [`RESIDUAL_LIMIT`]); NaN or
+/// infinite when the pair holds a value that is not finite.
+pub fn residual_ratio(
+    a: &eigen::SymBanded,
+    b: Option<&eigen::SymBanded>,
+    energy: f64,
+    z: &[f64],
+) -> f64 {
+    let scale = match b {
+        Some(b) => a.norm_one() + energy.abs() * b.norm_one(),
+        None => a.norm_one(),
+    };
+    let r = eigen::diagnostics::residual_norm1(&Problem { a, b }, energy, z);
+    let length = z.iter().map(|x| x * x).sum::<f64>().sqrt();
+    r / (scale.max(f64::MIN_POSITIVE) * z.len() as f64 * f64::EPSILON * length)
+}
+
+/// Refuses a grid the stencil does not fit on, or a solve whose memory
+/// estimate ([`memory_estimate`]) is above [`MEMORY_LIMIT_BYTES`], before
+/// anything is allocated.
+pub fn check_size(model: &Model, grid: &Grid) -> Result<(), SolveError> {
+    let p = model.grid.order.half_width();
+    let needed = match model.grid.scheme {
+        Scheme::FiniteDifference => 2 * p + 1,
+        Scheme::Numerov => 5,
+    };
+    if grid.points < needed {
+        return Err(SolveError::GridTooSmall {
+            points: grid.points,
+            order: model.grid.order.get(),
+            needed,
+        });
+    }
+    let levels_wanted = match model.levels.below {
+        Some(_) => grid.points,
+        None => model.levels.count.min(grid.points),
+    };
+    let bytes = memory_estimate(grid.points, p, levels_wanted);
+    if bytes > MEMORY_LIMIT_BYTES {
+        return Err(SolveError::TooLarge {
+            points: grid.points,
+            levels: levels_wanted,
+            bytes,
+        });
+    }
+    Ok(())
+}
+
+/// How much rounding blurs the energies of a discretised problem.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Rounding {
+    /// [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+    pub rounding: f64,
+    /// The domain's lowest box level `hbar^2/2m (pi / L)^2`, eV: the scale
+    /// the rounding is compared with.
+    pub scale: f64,
+}
+
+/// Refuses a matrix whose rounding blurs every energy by more than the
+/// domain's lowest box level (no level could be told from the next), and
+/// returns the rounding level otherwise.
+pub fn check_conditioning(
+    model: &Model,
+    grid: &Grid,
+    d: &Discretised,
+) -> Result<Rounding, SolveError> {
+    let vmin = d.v.iter().copied().fold(f64::INFINITY, f64::min);
+    let vmax = d.v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let norm = d.disc.a.norm_one();
+    let rounding = ROUNDING_FACTOR * f64::EPSILON * norm;
+    let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
+    // An infinite norm (a spacing so small that 1/h^2 overflows) must be
+    // refused too.
+    if !rounding.is_finite() || rounding > scale {
+        return Err(SolveError::IllConditioned {
+            norm,
+            kinetic: model.kinetic() / (grid.spacing * grid.spacing),
+            rounding,
+            scale,
+            vmin,
+            vmax,
+        });
+    }
+    Ok(Rounding { rounding, scale })
+}
+
+/// Refuses a returned pair whose residual ratio is above [`RESIDUAL_LIMIT`]
+/// (or not a number): the eigen-solver did not converge for it.
+pub fn check_residuals(d: &Discretised, pairs: &Eigenpairs) -> Result<(), SolveError> {
+    for (j, (energy, vector)) in pairs.values.iter().zip(&pairs.vectors).enumerate() {
+        let residual = residual_ratio(&d.disc.a, d.disc.b.as_ref(), *energy, vector);
+        if residual.is_nan() || residual > RESIDUAL_LIMIT {
+            return Err(SolveError::NotConverged {
+                level: pairs.first + j + 1,
+                residual,
+            });
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,91 @@
+//! One solve on one grid: the guards, the eigen-solver, the residual check,
+//! then the assembly of levels and observables ([`super::assemble`]).
+
+use std::time::Instant;
+
+use crate::eigen::{self, EigenInfo, EigenParams, Eigenpairs, Problem, Selection};
+use crate::grid::Grid;
+use crate::input::Model;
+
+use super::assemble::assemble;
+use super::discretise::{discretise, Discretised};
+use super::guards::{check_conditioning, check_residuals, check_size};
+use super::guesses::with_order2_guesses;
+use super::{Solution, SolveError, Timing};
+
+/// The energies of levels `first..first + count` (0-based) on `grid`, with
+/// nothing else computed: the coarse grids of an error estimate.
+pub fn energies_on(
+    model: &Model,
+    grid: &Grid,
+    first: usize,
+    count: usize,
+    params: &EigenParams,
+) -> Result<Vec<f64>, SolveError> {
+    let d = discretise(model, grid)?;
+    let selection = Selection::Index { first, count };
+    let (pairs, _) = eigenpairs(model, grid, &d, &selection, params)?;
+    Ok(pairs.values)
+}
+
+/// The eigen-solver's window for the model's `[levels]` on a grid of
+/// `points` unknowns.
+fn selection(model: &Model, points: usize) -> Result<Selection, SolveError> {
+    Ok(match model.levels.below {
+        Some(energy) => Selection::Below { energy },
+        None => {
+            let last = model.levels.first + model.levels.count - 1;
+            if last > points {
+                return Err(SolveError::TooManyLevels {
+                    first: model.levels.first,
+                    last,
+                    points,
+                });
+            }
+            Selection::Index {
+                first: model.levels.first - 1,
+                count: model.levels.count,
+            }
+        }
+    })
+}
+
+/// The selected eigenpairs of the discretised problem, with order-2 guesses
+/// where they pay ([`with_order2_guesses`]).
+fn eigenpairs(
+    model: &Model,
+    grid: &Grid,
+    d: &Discretised,
+    selection: &Selection,
+    params: &EigenParams,
+) -> Result<(Eigenpairs, EigenInfo), SolveError> {
+    let problem = Problem {
+        a: &d.disc.a,
+        b: d.disc.b.as_ref(),
+    };
+    let guided = with_order2_guesses(model, grid, &d.v, selection, params);
+    Ok(eigen::solve(
+        &problem,
+        selection,
+        guided.as_ref().unwrap_or(params),
+    )?)
+}
+
+/// Solves the model on the given grid.
+pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solution, SolveError> {
+    let start = Instant::now();
+    check_size(model, grid)?;
+    let d = discretise(model, grid)?;
+    let rounding = check_conditioning(model, grid, &d)?;
+    let selection = selection(model, grid.points)?;
+    let t0 = Instant::now();
+    let (pairs, info) = eigenpairs(model, grid, &d, &selection, params)?;
+    let solve_s = t0.elapsed().as_secs_f64();
+    check_residuals(&d, &pairs)?;
+    let mut sol = assemble(model, grid, d, pairs, &info, rounding)?;
+    sol.timing = Timing {
+        solve_s,
+        total_s: start.elapsed().as_secs_f64(),
+    };
+    Ok(sol)
+}

@@ -1,0 +1,120 @@
+//! Convergence studies: the levels on grids whose spacing halves each time,
+//! with the observed order of convergence between consecutive grids.
+
+use serde::Serialize;
+
+use crate::eigen::EigenParams;
+use crate::grid::Grid;
+use crate::input::Model;
+use crate::pipeline::accuracy::{expected_order, observed_order, richardson};
+use crate::pipeline::{energies_on, grid_near, solve_on, wanted_steps, SolveError};
+
+/// One level across a sequence of grids.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ConvergenceRow {
+    /// Level number.
+    pub n: usize,
+    /// Its energy on each grid (coarsest first), eV.
+    pub energies: Vec<f64>,
+    /// Observed order from each consecutive triple of grids.
+    pub orders: Vec<Option<f64>>,
+    /// Richardson-extrapolated energy from the two finest grids, eV.
+    pub extrapolated: f64,
+    /// Error of each grid's energy against the extrapolated one, eV.
+    pub errors: Vec<f64>,
+    /// Whether the last observed order falls short of the expected one.
+    pub short: bool,
+}
+
+/// A convergence study: the levels on grids whose spacing halves each time.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Convergence {
+    /// Unknowns of each grid, coarsest first.
+    pub points: Vec<usize>,
+    /// Spacing of each grid, Å.
+    pub spacings: Vec<f64>,
+    /// The scheme's expected order.
+    pub expected_order: f64,
+    /// The round-off floor on the finest grid, eV.
+    pub roundoff_floor: f64,
+    /// One row per level.
+    pub rows: Vec<ConvergenceRow>,
+}
+
+/// Solves the model on `grids` grids, the finest the model's own (aligned
+/// so that every grid keeps jumps on grid points), each coarser one with
+/// half the steps.
+pub fn converge(
+    model: &Model,
+    grids: usize,
+    params: &EigenParams,
+) -> Result<Convergence, SolveError> {
+    let grids = grids.max(3);
+    let multiple = 1usize << (grids - 1);
+    let finest = grid_near(model, wanted_steps(model), multiple);
+    let fine = solve_on(model, &finest, params)?;
+    let first = fine.levels.first().map_or(0, |l| l.n - 1);
+    let count = fine.levels.len();
+    let mut all: Vec<(Grid, Vec<f64>)> = Vec::new();
+    for k in (1..grids).rev() {
+        let steps = (finest.steps() as f64 / (1usize << k) as f64).round() as usize;
+        let g = Grid::with_steps(&model.domain, steps);
+        if g.points < first + count + 2 * model.grid.order.half_width() + 2 {
+            continue;
+        }
+        let e = energies_on(model, &g, first, count, params)?;
+        all.push((g, e));
+    }
+    all.push((
+        finest.clone(),
+        fine.levels.iter().map(|l| l.energy).collect(),
+    ));
+    if all.len() < 3 {
+        return Err(SolveError::TooCoarseToConverge {
+            points: finest.points,
+        });
+    }
+    let order = expected_order(model, !fine.edges.positions.is_empty());
+    let floor = fine.roundoff_floor;
+    let rows = (0..count)
+        .map(|j| {
+            let energies: Vec<f64> = all.iter().map(|(_, e)| e[j]).collect();
+            let hs: Vec<f64> = all.iter().map(|(g, _)| g.spacing).collect();
+            let orders: Vec<Option<f64>> = (0..energies.len() - 2)
+                .map(|i| {
+                    let (e3, e2, e1) = (energies[i], energies[i + 1], energies[i + 2]);
+                    observed_order(
+                        e1,
+                        e2,
+                        e3,
+                        hs[i + 1] / hs[i + 2],
+                        hs[i] / hs[i + 2],
+                        4.0 * floor,
+                    )
+                })
+                .collect();
+            let k = energies.len();
+            let r = hs[k - 2] / hs[k - 1];
+            let extrapolated =
+                energies[k - 1] - (energies[k - 2] - energies[k - 1]) / (r.powf(order) - 1.0);
+            let errors = energies.iter().map(|e| (e - extrapolated).abs()).collect();
+            let short =
+                matches!(orders.last(), Some(Some(q)) if *q < order - richardson::ORDER_SLACK);
+            ConvergenceRow {
+                n: first + j + 1,
+                energies,
+                orders,
+                extrapolated,
+                errors,
+                short,
+            }
+        })
+        .collect();
+    Ok(Convergence {
+        points: all.iter().map(|(g, _)| g.points).collect(),
+        spacings: all.iter().map(|(g, _)| g.spacing).collect(),
+        expected_order: order,
+        roundoff_floor: floor,
+        rows,
+    })
+}
