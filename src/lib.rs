@@ -8,7 +8,9 @@
 //!           ─> eigen (selected eigenpairs) ─> observables ─> report (table/JSON/CSV)
 //! ```
 //!
-//! [`commands`] drives it for each subcommand of the `chainwell` binary.
+//! [`pipeline`] runs it once; [`study`] drives it many times (sweeps, fits,
+//! bands, convergence); [`report`] turns results into documents, tables
+//! and figures. The `chainwell` binary's command layer sits on top.
 //!
 //! ```
 //! use chainwell::input;
@@ -31,7 +33,6 @@
 #![deny(missing_docs)]
 
 pub mod bands;
-pub mod commands;
 pub mod constants;
 pub mod eigen;
 pub mod grid;
@@ -43,5 +44,6 @@ pub mod pipeline;
 pub mod plot;
 pub mod potential;
 pub mod report;
+pub mod starters;
 pub mod study;
 pub mod units;

@@ -112,7 +112,7 @@ fn library_solves_repeat_exactly() {
     let doc = || {
         let (model, source) = chainwell::input::load(&path, &set).unwrap();
         let sol = chainwell::pipeline::solve(&model).unwrap();
-        serde_json::to_string(&chainwell::report::json::solve_document(
+        serde_json::to_string(&chainwell::report::solve::solve_document(
             &model, &source, &sol, false,
         ))
         .unwrap()

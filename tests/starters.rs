@@ -5,8 +5,8 @@ mod common;
 
 use std::process::Command;
 
-use chainwell::commands::starter::{text, KINDS};
 use chainwell::input::{self, Override};
+use chainwell::starters::{text, KINDS};
 
 #[test]
 fn every_starter_loads_and_solves() {

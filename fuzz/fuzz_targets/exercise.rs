@@ -7,7 +7,6 @@
 
 use std::path::Path;
 
-use chainwell::commands::solve::solve_error;
 use chainwell::eigen::EigenParams;
 use chainwell::grid::Grid;
 use chainwell::input::{self, Override};
@@ -43,8 +42,8 @@ pub fn exercise_in(data: &[u8], base_dir: &Path) -> Result<String, String> {
         grid = Grid::with_points(&model.domain, MAX_POINTS);
     }
     let sol = pipeline::solve_on(&model, &grid, &EigenParams::default())
-        .map_err(|e| solve_error(&model, &source, e).to_string())?;
-    let _ = report::table::solve_table(&model, &sol);
-    let doc = report::json::solve_document(&model, &source, &sol, false);
+        .map_err(|e| e.locate(&model, &source).to_string())?;
+    let _ = report::solve_table::solve_table(&model, &sol);
+    let doc = report::solve::solve_document(&model, &source, &sol, false);
     serde_json::to_string(&doc).map_err(|e| format!("error: {e}"))
 }

@@ -1,10 +1,11 @@
 //! Why a solve could not finish, and whether the fault lies in the input.
 
 use crate::eigen::EigenError;
+use crate::input::{InputError, Model, SourceText};
 use crate::observables::OccupancyError;
 use crate::potential::NonFinite;
 
-use super::guards::{MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT};
+use super::limits::{GIB, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT};
 
 /// Why a solve could not finish.
 #[derive(Debug, thiserror::Error)]
@@ -52,7 +53,7 @@ pub enum SolveError {
         norm: f64,
         /// `hbar^2 / (2 m h^2)` for the grid's spacing `h`, eV.
         kinetic: f64,
-        /// The rounding level [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+        /// The rounding level [`super::limits::ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
         rounding: f64,
         /// `hbar^2/2m (pi / L)^2` for the domain's length `L`, eV.
         scale: f64,
@@ -107,4 +108,72 @@ impl SolveError {
     }
 }
 
-const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
+/// A failure as the user meets it: a fault in the input, located at the key
+/// that caused it (exit status 2), or a computation that could not finish
+/// (exit status 1).
+#[derive(Debug, thiserror::Error)]
+pub enum Fault {
+    /// A fault in the input file or an override.
+    #[error("{}", .0.render())]
+    Input(InputError),
+    /// A fault in the options of the run: a command-line flag, or an
+    /// argument of a library call (exit status 2).
+    #[error("error: {0}")]
+    Usage(String),
+    /// A computation that could not finish, with the reason.
+    #[error("error: {0}")]
+    Compute(String),
+}
+
+impl SolveError {
+    /// The fault as the user meets it: input faults are located at the key
+    /// that caused them (where it was written, else its section, else the
+    /// file), computations that could not finish keep their reason.
+    pub fn locate(self, model: &Model, source: &SourceText) -> Fault {
+        let file = source.locate(None);
+        let at = |key: &str, fallback: &str, message: String| {
+            let loc = model.location_of(key, &model.location_of(fallback, &file));
+            Fault::Input(InputError::new(loc, key, message))
+        };
+        match &self {
+            SolveError::NonFinitePotential(nf) => {
+                let (key, location) = model
+                    .term_locations
+                    .get(nf.term)
+                    .cloned()
+                    .unwrap_or_else(|| ("term".into(), file.clone()));
+                Fault::Input(InputError::new(
+                    location,
+                    key,
+                    format!(
+                        "gives {} at x = {} {}; the potential must be finite at every grid point",
+                        nf.value,
+                        model.units.length_out(nf.x),
+                        model.units.length.label()
+                    ),
+                ))
+            }
+            SolveError::Occupancy(_) => at("levels.electrons", "levels", self.to_string()),
+            SolveError::TooManyLevels { .. } => {
+                if model.key_locations.contains_key("levels.count") {
+                    at("levels.count", "levels", self.to_string())
+                } else {
+                    at("grid.points", "grid", self.to_string())
+                }
+            }
+            SolveError::GridTooSmall { .. } | SolveError::TooCoarseToConverge { .. } => {
+                at("grid.points", "grid", self.to_string())
+            }
+            SolveError::ToleranceUnreachable { .. } => {
+                at("grid.tolerance", "grid", self.to_string())
+            }
+            SolveError::Eigen(_) if self.is_input_error() => {
+                at("levels", "levels", self.to_string())
+            }
+            SolveError::TooLarge { .. }
+            | SolveError::IllConditioned { .. }
+            | SolveError::NotConverged { .. }
+            | SolveError::Eigen(_) => Fault::Compute(self.to_string()),
+        }
+    }
+}

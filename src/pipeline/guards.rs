@@ -7,25 +7,8 @@ use crate::grid::{Grid, Scheme};
 use crate::input::Model;
 
 use super::discretise::Discretised;
+use super::limits::{memory_estimate, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT, ROUNDING_FACTOR};
 use super::SolveError;
-
-/// Bytes in a GiB.
-pub const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
-
-/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
-/// machines chainwell is tested on, so that a mistyped `grid.points` is
-/// refused at once instead of exhausting the machine.
-pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
-
-/// Estimated bytes of a solve on `points` unknowns with a stencil of
-/// half-width `half_width` and `levels` levels: the banded matrix
-/// (`half_width + 1` diagonals), one vector per level, and four work
-/// vectors (positions, potential, two for the eigen-solver), in `f64`:
-/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
-/// so that it cannot overflow.
-pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
-    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
-}
 
 /// The round-off floor of eigenvalues on `grid`: `eps ||H||_1`, with
 /// `||H||_1 <= (t / h^2) sum_d |c_d| + max |V|` (any backward-stable
@@ -37,19 +20,6 @@ pub fn roundoff_floor(model: &Model, grid: &Grid, v: &[f64]) -> f64 {
     let vmax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
     f64::EPSILON * (model.kinetic() / (grid.spacing * grid.spacing) * sum + vmax)
 }
-
-/// Energies are blurred by rounding by about `ROUNDING_FACTOR * eps *
-/// ||H||_1`: LAPACK's error bounds for computed symmetric eigenvalues are of
-/// the form `p(n) eps ||H||` with a modestly growing `p(n)` (E. Anderson et
-/// al., *LAPACK Users' Guide*, 3rd ed., SIAM 1999, sec. 4.7); 10 is a
-/// common practice, no source.
-pub const ROUNDING_FACTOR: f64 = 10.0;
-
-/// Largest residual ratio `||H z - E z||_1 / (||H||_1 N eps)` accepted for a
-/// returned eigenpair. LAPACK's tests fail a routine above 30 (the DSTT21
-/// threshold); a pair that did not converge is many orders above that. 1e4
-/// leaves a wide margin (common practice, no source).
-pub const RESIDUAL_LIMIT: f64 = 1e4;
 
 /// The residual ratio of one returned pair (see [`RESIDUAL_LIMIT`]); NaN or
 /// infinite when the pair holds a value that is not finite.

@@ -5,10 +5,7 @@ use crate::grid::{Boundary, Grid, Scheme};
 use crate::hamiltonian;
 use crate::input::Model;
 
-/// Grids with at most this many points skip the order-2 guesses: there the
-/// shift-invert path takes a fraction of a second anyway, and the extra
-/// order-2 solve would not pay for itself (common practice, no source).
-pub const GUESS_MIN_POINTS: usize = 5000;
+use super::limits::GUESS_MIN_POINTS;
 
 /// Parameters with [`EigenParams::guesses`] set to the order-2 eigenvalues of
 /// the same potential on the same grid, when the model's discretisation is of

@@ -15,6 +15,7 @@
 //! - [`gridding`]: the grid a model asks for, aligned with its jumps.
 //! - [`discretise`]: the potential on the grid and the banded Hamiltonian.
 //! - [`guards`]: memory, conditioning and residual checks; the round-off floor.
+//! - [`limits`]: the thresholds and the memory model those checks use.
 //! - [`guesses`]: order-2 levels as shifts for the higher-order schemes.
 //! - [`on_grid`]: one solve on one grid ([`solve_on`]) or its energies only
 //!   ([`energies_on`]).
@@ -33,7 +34,9 @@ pub mod error;
 pub mod gridding;
 pub mod guards;
 pub mod guesses;
+pub mod limits;
 pub mod on_grid;
+pub mod record;
 pub mod solution;
 pub mod spectrum;
 pub mod warnings;
@@ -41,11 +44,12 @@ pub mod warnings;
 #[cfg(test)]
 mod tests;
 
-pub use error::SolveError;
+pub use error::{Fault, SolveError};
 pub use gridding::{grid_for, grid_near, interior_edges, wanted_steps};
-pub use guards::{memory_estimate, roundoff_floor, MEMORY_LIMIT_BYTES};
+pub use guards::roundoff_floor;
+pub use limits::{memory_estimate, MEMORY_LIMIT_BYTES};
 pub use on_grid::{energies_on, solve_on};
-pub use solution::{Diagnostics, EdgeReport, Level, Solution, Timing};
+pub use solution::{Diagnostics, EdgeReport, Level, Refinement, RefinementStep, Solution, Timing};
 pub use spectrum::{ring_degeneracies, spectrum};
 
 use crate::eigen::EigenParams;

@@ -94,9 +94,28 @@ pub struct Solution {
     /// sits on a grid point.
     pub edges: EdgeReport,
     /// How the grid was refined to a tolerance, when one was asked for.
-    pub refinement: Option<super::accuracy::Refinement>,
+    pub refinement: Option<Refinement>,
     /// What the user should know.
     pub warnings: Vec<String>,
     /// Seconds spent.
     pub timing: Timing,
+}
+
+/// How a tolerance was met.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Refinement {
+    /// The relative tolerance asked for.
+    pub tolerance: f64,
+    /// Each grid tried: its points and the worst ratio of a level's estimate
+    /// to its allowance (at most 1 on the last).
+    pub steps: Vec<RefinementStep>,
+}
+
+/// One grid of a refinement.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RefinementStep {
+    /// Unknowns.
+    pub points: usize,
+    /// Worst estimate / allowance over the levels.
+    pub worst_ratio: f64,
 }

@@ -5,6 +5,7 @@ use crate::grid::Boundary;
 use crate::input::Model;
 use crate::observables;
 
+use super::limits::DEGENERACY_TOLERANCE;
 use super::Solution;
 
 /// The absorption spectrum of a solution's transitions, broadened as the
@@ -23,12 +24,6 @@ pub fn spectrum(model: &Model, sol: &Solution) -> observables::Spectrum {
     let grid = observables::default_wavelength_grid(&lines, model.spectrum.fwhm);
     observables::absorption(&lines, shape, model.spectrum.fwhm, &grid)
 }
-
-/// Dimensionless tolerance for calling two ring levels degenerate (see
-/// [`crate::observables::group_levels`]): far above the eigen-solver's round-off,
-/// far below any physical splitting worth reporting (common practice, no
-/// source).
-pub const DEGENERACY_TOLERANCE: f64 = 1e-7;
 
 /// The computed levels of a ring (periodic domain) grouped into degenerate
 /// sets, e.g. the `+-j` pairs of a free ring; `None` with hard walls. A group

@@ -2,8 +2,8 @@
 
 use std::path::Path;
 
-use super::guards::{residual_ratio, RESIDUAL_LIMIT};
-use super::guesses::GUESS_MIN_POINTS;
+use super::guards::residual_ratio;
+use super::limits::{GUESS_MIN_POINTS, RESIDUAL_LIMIT};
 use super::*;
 use crate::eigen::{self, EigenParams, Method};
 use crate::hamiltonian;

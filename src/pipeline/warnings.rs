@@ -4,11 +4,8 @@
 use crate::grid::{Boundary, Grid};
 use crate::input::Model;
 
+use super::limits::{DEGENERATE_FACTOR, MIN_POINTS_PER_LOBE, ROUNDING_WARNING};
 use super::{EdgeReport, Level};
-
-/// Points per half-wavelength below which a level is poorly resolved
-/// (common practice, no source).
-pub const MIN_POINTS_PER_LOBE: f64 = 10.0;
 
 /// Warnings about the grid and the domain: a grid too coarse for the
 /// highest level, and levels that feel hard walls that are not part of the
@@ -54,16 +51,6 @@ pub fn warnings(model: &Model, grid: &Grid, v: &[f64], levels: &[Level]) -> Vec<
     }
     out
 }
-
-/// Rounding, relative to the domain's lowest box level, above which the
-/// energies' last digits are flagged as noise (common practice, no source).
-pub const ROUNDING_WARNING: f64 = 1e-6;
-
-/// Two adjacent levels closer than this many times the rounding level are
-/// treated as degenerate: their eigenvectors may be any mixture of the two
-/// (the angle of an eigenvector's error is about rounding / gap; Davis and
-/// Kahan, SIAM J. Numer. Anal. 7, 1 (1970)).
-pub const DEGENERATE_FACTOR: f64 = 1e2;
 
 /// Warnings about rounding: energies whose last digits are noise, and
 /// adjacent levels that rounding cannot tell apart. Degenerate pairs are

@@ -39,7 +39,7 @@ pub use bands::{BandsFigure, ChainLadder, LADDER_SHARE};
 pub use converge::{ConvergeFigure, ErrorSeries, REFERENCE_OFFSET};
 pub use file::write_atomic;
 pub use fit::{FitFigure, RESIDUAL_SHARE};
-pub use render::{render, render_png, render_svg};
+pub use render::{check, render, render_png, render_svg};
 pub use spectrum::{SpectrumFigure, Stick};
 pub use states::{StateLevel, StatesFigure, WAVE_FRACTION};
 pub use style::{Rgb, Size, Style, LEVEL_INK, MAX_PIXELS, OKABE_ITO, SCREEN_DPI, SERIES_ORDER};

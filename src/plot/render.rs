@@ -97,6 +97,15 @@ pub fn render_png(figure: &Figure, style: &Style) -> Result<Vec<u8>, PlotError> 
     Ok(png)
 }
 
+/// Checks, before anything is computed, that `path` names a figure format
+/// chainwell writes and that `style` is usable (size, type size, line
+/// width, windows): the faults [`render`] would otherwise find only after
+/// the work.
+pub fn check(style: &Style, path: &Path) -> Result<(), PlotError> {
+    format_of(path)?;
+    Px::new(style).map(|_| ())
+}
+
 /// Draws `figure` with `style` and writes it to `path`, as SVG or PNG by
 /// the extension (`.svg`, `.png`, any case). The file is replaced
 /// atomically; on any error an existing file at `path` is left untouched.

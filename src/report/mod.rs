@@ -1,6 +1,22 @@
-//! Reports of results: JSON documents (the contract's keys) and readable
-//! tables, in the input's units.
+//! Reports of results, one file per document, in the input's units: JSON
+//! documents (the contract's keys), readable tables, tidy CSV files, and the
+//! figures built from results.
+//!
+//! - [`envelope`]: what every document carries (program, input echo).
+//! - [`solve`], [`solve_table`], [`solve_csv`]: one solve.
+//! - [`sweep`]: the sweep document, table and CSV.
+//! - [`fit`] and [`target`]: fits and design targets.
+//! - [`bands`]: the bands document, table and CSV.
+//! - [`converge`]: convergence studies.
+//! - [`figure`]: figures of every result, ready for [`crate::plot`].
 
-pub mod csv;
-pub mod json;
-pub mod table;
+pub mod bands;
+pub mod converge;
+pub mod envelope;
+pub mod figure;
+pub mod fit;
+pub mod solve;
+pub mod solve_csv;
+pub mod solve_table;
+pub mod sweep;
+pub mod target;

@@ -34,11 +34,11 @@ use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
 use nalgebra::storage::Owned;
 use nalgebra::{DMatrix, DVector, Dyn};
 use rayon::prelude::*;
-use serde_json::{json, Value};
 
 use super::cases::CaseValue;
 pub use super::data::{Data, DataError, DataRow};
 use super::quantity::{Quantity, QuantityError};
+use super::runner::Runner;
 use crate::input::{self, InputError, Override};
 use crate::pipeline::{self, SolveError};
 
@@ -231,11 +231,22 @@ pub enum FitError {
     },
 }
 
+/// The state of a running fit, as its checkpoint keeps it: the best
+/// values so far (external, in the order of the free keys).
+#[derive(Debug, Clone, PartialEq)]
+pub struct FitProgress {
+    /// Best values so far.
+    pub best: Vec<f64>,
+    /// Model evaluations so far.
+    pub evaluations: usize,
+}
+
 struct Problem<'a> {
     spec: &'a FitSpec,
     u: DVector<f64>,
     residuals: Option<DVector<f64>>,
     stop: Option<&'a AtomicBool>,
+    runner: &'a Runner<'a, FitProgress>,
     failure: &'a Mutex<Option<FitError>>,
     evaluations: &'a Mutex<usize>,
     best: &'a Mutex<(f64, Vec<f64>)>,
@@ -297,7 +308,11 @@ impl Problem<'_> {
 
     fn weighted(&self, u: &DVector<f64>) -> Option<DVector<f64>> {
         let p = self.external(u);
-        *self.evaluations.lock().unwrap_or_else(|e| e.into_inner()) += 1;
+        let evaluations = {
+            let mut n = self.evaluations.lock().unwrap_or_else(|e| e.into_inner());
+            *n += 1;
+            *n
+        };
         match model_values(self.spec, &p, self.stop) {
             Ok(m) => {
                 let w = weights(self.spec);
@@ -312,6 +327,10 @@ impl Problem<'_> {
                 let mut best = self.best.lock().unwrap_or_else(|e| e.into_inner());
                 if chi2 < best.0 {
                     *best = (chi2, p);
+                    self.runner.save(false, || FitProgress {
+                        best: best.1.clone(),
+                        evaluations,
+                    });
                 }
                 Some(r)
             }
@@ -459,9 +478,11 @@ fn check_determined(spec: &FitSpec, j: &DMatrix<f64>) -> Result<(), FitError> {
     Ok(())
 }
 
-/// Runs the fit. `stop` (Ctrl-C) ends it early with
-/// [`FitError::Interrupted`] carrying the best values so far.
-pub fn fit(spec: &FitSpec, stop: Option<&AtomicBool>) -> Result<FitResult, FitError> {
+/// Runs the fit. The runner's stop flag (Ctrl-C) ends it early with
+/// [`FitError::Interrupted`] carrying the best values so far; each new best
+/// is offered to the runner's checkpoint.
+pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult, FitError> {
+    let stop = runner.stop_flag();
     let m = spec.data.rows.len();
     let n = spec.free.len();
     let scaled = spec.data.rows.iter().any(|r| r.uncertainty.is_none());
@@ -483,6 +504,7 @@ pub fn fit(spec: &FitSpec, stop: Option<&AtomicBool>) -> Result<FitResult, FitEr
         u: u0.clone(),
         residuals: None,
         stop,
+        runner,
         failure: &failure,
         evaluations: &evaluations,
         best: &best,
@@ -584,75 +606,6 @@ pub fn fit(spec: &FitSpec, stop: Option<&AtomicBool>) -> Result<FitResult, FitEr
         evaluations: evals,
         termination: format!("{:?}", report.termination),
     })
-}
-
-impl FitResult {
-    /// The `chainwell.fit/1` document.
-    pub fn to_json(&self, units: &Value, input: &Value) -> Value {
-        json!({
-            "format": FORMAT,
-            "program": crate::report::json::program(),
-            "units": units,
-            "complete": true,
-            "key": self.key,
-            "quantity": self.quantity.name(),
-            "parameters": self.parameters.iter().map(|p| json!({
-                "key": p.key, "value": p.value, "uncertainty": p.uncertainty, "start": p.start,
-            })).collect::<Vec<_>>(),
-            "correlation": self.correlation,
-            "rms": self.rms,
-            "chi2": self.chi2,
-            "dof": self.dof,
-            "reduced_chi2": if self.dof > 0 { Some(self.chi2 / self.dof as f64) } else { None },
-            "evaluations": self.evaluations,
-            "termination": self.termination,
-            "rows": self.rows.iter().map(|r| json!({
-                "value": r.value.to_json(), "observed": r.observed, "model": r.model,
-                "residual": r.model - r.observed, "uncertainty": r.uncertainty,
-            })).collect::<Vec<_>>(),
-            "input": input,
-        })
-    }
-
-    /// A readable report: parameters, correlations, rows.
-    pub fn table(&self) -> String {
-        let mut out = String::from("parameter                 value            uncertainty\n");
-        for p in &self.parameters {
-            out.push_str(&format!(
-                "{:<24}  {:<15.8}  {:.3e}\n",
-                p.key, p.value, p.uncertainty
-            ));
-        }
-        if self.parameters.len() > 1 {
-            out.push_str("\ncorrelation\n");
-            for (p, row) in self.parameters.iter().zip(&self.correlation) {
-                let cells: Vec<String> = row.iter().map(|c| format!("{c:>7.3}")).collect();
-                out.push_str(&format!("{:<24}  {}\n", p.key, cells.join(" ")));
-            }
-        }
-        let q = self.quantity.name();
-        out.push_str(&format!(
-            "\n{:>14}  {:>14}  {:>14}  {:>12}\n",
-            self.key,
-            format!("observed {q}"),
-            "model",
-            "residual"
-        ));
-        for r in &self.rows {
-            out.push_str(&format!(
-                "{:>14}  {:>14.6}  {:>14.6}  {:>12.3e}\n",
-                r.value.to_json().to_string(),
-                r.observed,
-                r.model,
-                r.model - r.observed
-            ));
-        }
-        out.push_str(&format!(
-            "\nrms {:.6e}  chi2 {:.6e}  dof {}  evaluations {}\n",
-            self.rms, self.chi2, self.dof, self.evaluations
-        ));
-        out
-    }
 }
 
 #[cfg(test)]

@@ -1,5 +1,6 @@
 //! Studies: the pipeline run many times.
 //!
+//! - [`bands`]: the bands of the infinite chain, their filling, finite chains beside.
 //! - [`cases`]: `--vary` flags, the grid of cases, shards.
 //! - [`sweep`]: one solve per case, in parallel, rows in case order.
 //! - [`merge`]: the shards of a sweep joined into the unsharded document.
@@ -9,8 +10,9 @@
 //! - [`target`]: Brent's root finder for the value that gives a wanted quantity.
 //! - [`converge`]: the levels on grids whose spacing halves, observed orders.
 //! - [`checkpoint`]: Ctrl-C and progress files, so interrupted work is kept.
-//! - [`render`]: tables and tidy CSV.
+//! - [`runner`]: the stop flag, progress and checkpoint every long study shares.
 
+pub mod bands;
 pub mod cases;
 pub mod checkpoint;
 pub mod converge;
@@ -18,7 +20,7 @@ pub mod data;
 pub mod fit;
 pub mod merge;
 pub mod quantity;
-pub mod render;
+pub mod runner;
 pub mod sweep;
 pub mod target;
 

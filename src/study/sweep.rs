@@ -9,19 +9,19 @@
 //! the number of threads.
 //!
 //! A row carries the same `levels` and `occupancy` objects as
-//! `chainwell solve --json` ([`crate::report::json`]).
+//! `chainwell solve --json` ([`crate::pipeline::record`]).
 
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
 
 use rayon::prelude::*;
-use serde_json::{json, Map, Value};
+use serde_json::{json, Value};
 
 use super::cases::{Case, CaseGrid, CaseValue, Shard};
+use super::runner::Runner;
 use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::pipeline::record::{level_records, occupancy_record, LevelRecord, OccupancyRecord};
 use crate::pipeline::{self, SolveError};
-use crate::report;
 
 /// The format name of sweep documents.
 pub const FORMAT: &str = "chainwell.sweep/1";
@@ -64,10 +64,10 @@ pub struct SweepRow {
     pub case: usize,
     /// The value of each varied key.
     pub values: Vec<CaseValue>,
-    /// The `levels` array, as `solve --json` writes it.
-    pub levels: Value,
-    /// The `occupancy` object, when electrons are filled.
-    pub occupancy: Option<Value>,
+    /// The levels, as `solve --json` writes them.
+    pub levels: Vec<LevelRecord>,
+    /// The filling, when electrons are filled.
+    pub occupancy: Option<OccupancyRecord>,
     /// The solve's warnings for this case.
     pub warnings: Vec<String>,
 }
@@ -75,38 +75,33 @@ pub struct SweepRow {
 impl SweepRow {
     /// `(n, energy)` of each computed level, in the input's energy unit.
     pub fn energies(&self) -> Vec<(usize, f64)> {
-        self.levels
-            .as_array()
-            .map(|ls| {
-                ls.iter()
-                    .filter_map(|l| Some((l["n"].as_u64()? as usize, l["energy"].as_f64()?)))
-                    .collect()
-            })
-            .unwrap_or_default()
-    }
-
-    fn occupancy_number(&self, key: &str) -> Option<f64> {
-        self.occupancy.as_ref().and_then(|o| o[key].as_f64())
+        self.levels.iter().map(|l| (l.n, l.energy)).collect()
     }
 
     /// The HOMO–LUMO gap, in the input's energy unit.
     pub fn gap(&self) -> Option<f64> {
-        self.occupancy_number("gap")
+        self.occupancy.as_ref().and_then(|o| o.gap)
     }
 
     /// The HOMO → LUMO wavelength, nm.
     pub fn wavelength_nm(&self) -> Option<f64> {
-        self.occupancy_number("wavelength_nm")
+        self.occupancy.as_ref().and_then(|o| o.wavelength_nm)
     }
 
     /// The HOMO's level number.
     pub fn homo(&self) -> Option<usize> {
-        self.occupancy_number("homo").map(|h| h as usize)
+        self.occupancy.as_ref().map(|o| o.homo)
     }
 
     /// The LUMO's level number.
     pub fn lumo(&self) -> Option<usize> {
-        self.occupancy_number("lumo").map(|h| h as usize)
+        self.occupancy.as_ref().and_then(|o| o.lumo)
+    }
+
+    /// Electrons in level `n` (0, 1 or 2), when electrons are filled.
+    pub fn electrons_in(&self, n: usize) -> Option<usize> {
+        let electrons = self.occupancy.as_ref()?.electrons;
+        Some(electrons.saturating_sub(2 * (n - 1)).min(2))
     }
 }
 
@@ -206,33 +201,22 @@ pub fn solve_case(case: &Case, model: &Model) -> Result<SweepRow, SolveError> {
     Ok(SweepRow {
         case: case.number,
         values: case.values.clone(),
-        levels: report::json::levels(model, &sol),
-        occupancy: sol
-            .occupancy
-            .as_ref()
-            .map(|o| report::json::occupancy(model, o)),
+        levels: level_records(model, &sol),
+        occupancy: sol.occupancy.as_ref().map(|o| occupancy_record(model, o)),
         warnings: sol.warnings.clone(),
     })
 }
 
-/// What a running sweep tells its caller, and how it is stopped.
-#[derive(Default)]
-pub struct Hooks<'a> {
-    /// When set, no further case is started (finished ones are kept).
-    pub stop: Option<&'a AtomicBool>,
-    /// Called after each case with every row finished so far (in no
-    /// particular order) and the number of cases this run has in total.
-    #[allow(clippy::type_complexity)]
-    pub on_row: Option<&'a (dyn Fn(&[SweepRow], usize) + Sync)>,
-}
-
 /// Runs the prepared cases that are not already among `done` (rows of an
-/// earlier, interrupted run of the same study). Returns the result, marked
+/// earlier, interrupted run of the same study). The runner's stop flag is
+/// polled before each case; after each case the runner hears of the
+/// progress and is offered the partial result (rows in case order,
+/// `complete: false`) for its checkpoint. Returns the result, marked
 /// incomplete when the stop flag cut it short.
 pub fn run(
     prepared: &Prepared,
     done: Vec<SweepRow>,
-    hooks: &Hooks<'_>,
+    runner: &Runner<'_, SweepResult>,
 ) -> Result<SweepResult, SweepError> {
     let finished_cases: std::collections::HashSet<usize> = done.iter().map(|r| r.case).collect();
     let todo: Vec<&(Case, Model)> = prepared
@@ -242,11 +226,10 @@ pub fn run(
         .collect();
     let total = prepared.cases.len();
     let finished = Mutex::new(done);
-    let stopped = || hooks.stop.is_some_and(|s| s.load(Ordering::SeqCst));
     let results: Vec<Option<Result<SweepRow, SweepError>>> = todo
         .par_iter()
         .map(|(case, model)| {
-            if stopped() {
+            if runner.stopped() {
                 return None;
             }
             let r = solve_case(case, model).map_err(|source| SweepError::Solve {
@@ -257,9 +240,16 @@ pub fn run(
             if let Ok(row) = &r {
                 let mut f = finished.lock().unwrap_or_else(|p| p.into_inner());
                 f.push(row.clone());
-                if let Some(cb) = hooks.on_row {
-                    cb(&f, total);
-                }
+                runner.progress(f.len(), total);
+                runner.save(false, || {
+                    let mut rows = f.clone();
+                    rows.sort_by_key(|r| r.case);
+                    SweepResult {
+                        header: prepared.header.clone(),
+                        rows,
+                        complete: false,
+                    }
+                });
             }
             Some(r)
         })
@@ -280,25 +270,6 @@ pub fn run(
 }
 
 impl SweepHeader {
-    /// The header's keys of a sweep document (no `rows`, no `complete`).
-    pub fn to_json(&self) -> Map<String, Value> {
-        let mut doc = Map::new();
-        doc.insert("format".into(), json!(FORMAT));
-        doc.insert("program".into(), report::json::program());
-        doc.insert("units".into(), self.units.clone());
-        doc.insert("key".into(), json!(self.keys.first()));
-        if self.keys.len() > 1 {
-            doc.insert("keys".into(), json!(self.keys));
-        }
-        doc.insert("vary".into(), json!(self.specs));
-        doc.insert("cases".into(), json!(self.cases));
-        if let Some(s) = self.shard {
-            doc.insert("shard".into(), json!({"index": s.index, "count": s.count}));
-        }
-        doc.insert("input".into(), self.input.clone());
-        doc
-    }
-
     /// Reads the header back from a document.
     pub fn from_json(doc: &Value) -> Result<Self, String> {
         if doc["format"] != FORMAT {
@@ -338,27 +309,6 @@ impl SweepHeader {
 }
 
 impl SweepRow {
-    /// The row object of the document.
-    pub fn to_json(&self) -> Value {
-        let mut m = Map::new();
-        m.insert("case".into(), json!(self.case));
-        m.insert("value".into(), self.values[0].to_json());
-        if self.values.len() > 1 {
-            m.insert(
-                "values".into(),
-                Value::Array(self.values.iter().map(|v| v.to_json()).collect()),
-            );
-        }
-        m.insert("levels".into(), self.levels.clone());
-        if let Some(o) = &self.occupancy {
-            m.insert("occupancy".into(), o.clone());
-        }
-        if !self.warnings.is_empty() {
-            m.insert("warnings".into(), json!(self.warnings));
-        }
-        Value::Object(m)
-    }
-
     /// Reads a row back.
     pub fn from_json(v: &Value) -> Result<Self, String> {
         let case = v["case"].as_u64().ok_or("a row has no `case` number")? as usize;
@@ -375,8 +325,15 @@ impl SweepRow {
         Ok(Self {
             case,
             values,
-            levels: v["levels"].clone(),
-            occupancy: v.get("occupancy").cloned(),
+            levels: serde_json::from_value(v["levels"].clone())
+                .map_err(|e| format!("case {case}: bad `levels`: {e}"))?,
+            occupancy: match v.get("occupancy") {
+                Some(o) => Some(
+                    serde_json::from_value(o.clone())
+                        .map_err(|e| format!("case {case}: bad `occupancy`: {e}"))?,
+                ),
+                None => None,
+            },
             warnings: v
                 .get("warnings")
                 .and_then(|w| serde_json::from_value(w.clone()).ok())
@@ -386,24 +343,6 @@ impl SweepRow {
 }
 
 impl SweepResult {
-    /// The `chainwell.sweep/1` document.
-    pub fn to_json(&self) -> Value {
-        let mut doc = self.header.to_json();
-        doc.insert("complete".into(), json!(self.complete));
-        doc.insert(
-            "rows".into(),
-            Value::Array(self.rows.iter().map(SweepRow::to_json).collect()),
-        );
-        Value::Object(doc)
-    }
-
-    /// The document as pretty JSON text with a final newline.
-    pub fn to_json_text(&self) -> String {
-        let mut s = serde_json::to_string_pretty(&self.to_json()).unwrap_or_default();
-        s.push('\n');
-        s
-    }
-
     /// Reads a document back.
     pub fn from_json(doc: &Value) -> Result<Self, String> {
         let header = SweepHeader::from_json(doc)?;

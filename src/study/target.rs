@@ -10,8 +10,6 @@
 
 use std::sync::atomic::AtomicBool;
 
-use serde_json::{json, Value};
-
 use super::fit::{evaluate, EvalError};
 use super::quantity::Quantity;
 use crate::input::Override;
@@ -249,37 +247,6 @@ pub fn solve_target(
         bracket: (a, b),
         evaluations,
     })
-}
-
-impl TargetResult {
-    /// The `chainwell.target/1` document.
-    pub fn to_json(&self, units: &Value, input: &Value) -> Value {
-        json!({
-            "format": "chainwell.target/1",
-            "program": crate::report::json::program(),
-            "units": units,
-            "parameters": [{"key": self.key, "value": self.value}],
-            "quantity": self.quantity.name(),
-            "target": self.target,
-            "achieved": self.achieved,
-            "bracket": [self.bracket.0, self.bracket.1],
-            "evaluations": self.evaluations,
-            "input": input,
-        })
-    }
-
-    /// A readable line.
-    pub fn table(&self) -> String {
-        format!(
-            "{} = {:.10}  gives {} = {:.8} (target {}), {} solves\n",
-            self.key,
-            self.value,
-            self.quantity.name(),
-            self.achieved,
-            self.target,
-            self.evaluations
-        )
-    }
 }
 
 #[cfg(test)]

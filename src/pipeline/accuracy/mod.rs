@@ -21,7 +21,7 @@ use crate::grid::Scheme;
 use crate::input::model::Model;
 
 pub use estimate::estimate;
-pub use refine::{refine, Refinement, RefinementStep, MAX_REFINEMENTS};
+pub use refine::{refine, MAX_REFINEMENTS};
 pub use richardson::{analyse, observed_order, LevelError};
 
 /// The order the error of the model's levels should fall with.

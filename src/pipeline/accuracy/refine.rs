@@ -1,31 +1,11 @@
 //! Refinement of the grid until every requested level is as accurate as a
 //! relative tolerance asks.
 
-use serde::Serialize;
-
 use crate::input::Model;
 
 use super::{estimate, expected_order};
+use crate::pipeline::solution::{Refinement, RefinementStep};
 use crate::pipeline::{grid_near, solve_on, wanted_steps, Solution, SolveError, SolveOptions};
-
-/// How a tolerance was met.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Refinement {
-    /// The relative tolerance asked for.
-    pub tolerance: f64,
-    /// Each grid tried: its points and the worst ratio of a level's estimate
-    /// to its allowance (at most 1 on the last).
-    pub steps: Vec<RefinementStep>,
-}
-
-/// One grid of a refinement.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct RefinementStep {
-    /// Unknowns.
-    pub points: usize,
-    /// Worst estimate / allowance over the levels.
-    pub worst_ratio: f64,
-}
 
 /// Most grids a refinement tries.
 pub const MAX_REFINEMENTS: usize = 10;

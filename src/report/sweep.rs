@@ -1,4 +1,4 @@
-//! Tables and CSV files of study results.
+//! The sweep document (`chainwell.sweep/1`), its table and its tidy CSV.
 //!
 //! The CSV of a sweep is in tidy long form, one line per case and level,
 //! so that `pandas.read_csv` gives a frame ready for grouping and plotting:
@@ -8,17 +8,13 @@
 
 use std::fmt::Write;
 
-use super::sweep::{SweepResult, SweepRow};
+use serde_json::{json, Map, Value};
+
+use super::envelope::program;
+use crate::study::sweep::{SweepHeader, SweepResult, SweepRow, FORMAT};
 
 fn opt<T: std::fmt::Display>(v: Option<T>) -> String {
     v.map(|x| x.to_string()).unwrap_or_default()
-}
-
-fn electrons_in(row: &SweepRow, n: usize) -> Option<u64> {
-    let occ = row.occupancy.as_ref()?;
-    let electrons = occ["electrons"].as_u64()?;
-    let below = 2 * (n as u64 - 1);
-    Some(electrons.saturating_sub(below).min(2))
 }
 
 /// The sweep as tidy CSV text (see the module docs).
@@ -38,7 +34,7 @@ pub fn sweep_csv(result: &SweepResult) -> String {
             let _ = writeln!(
                 out,
                 ",{n},{e},{},{},{},{},{}",
-                opt(electrons_in(row, n)),
+                opt(row.electrons_in(n)),
                 opt(row.homo()),
                 opt(row.lumo()),
                 opt(row.gap()),
@@ -116,4 +112,68 @@ pub fn sweep_table(result: &SweepResult) -> String {
         out.push('\n');
     }
     out
+}
+
+/// The header's keys of a sweep document (no `rows`, no `complete`).
+pub fn header_json(h: &SweepHeader) -> Map<String, Value> {
+    let mut doc = Map::new();
+    doc.insert("format".into(), json!(FORMAT));
+    doc.insert("program".into(), program());
+    doc.insert("units".into(), h.units.clone());
+    doc.insert("key".into(), json!(h.keys.first()));
+    if h.keys.len() > 1 {
+        doc.insert("keys".into(), json!(h.keys));
+    }
+    doc.insert("vary".into(), json!(h.specs));
+    doc.insert("cases".into(), json!(h.cases));
+    if let Some(s) = h.shard {
+        doc.insert("shard".into(), json!({"index": s.index, "count": s.count}));
+    }
+    doc.insert("input".into(), h.input.clone());
+    doc
+}
+
+/// The row object of the document.
+pub fn row_json(row: &SweepRow) -> Value {
+    let mut m = Map::new();
+    m.insert("case".into(), json!(row.case));
+    m.insert("value".into(), row.values[0].to_json());
+    if row.values.len() > 1 {
+        m.insert(
+            "values".into(),
+            Value::Array(row.values.iter().map(|v| v.to_json()).collect()),
+        );
+    }
+    m.insert(
+        "levels".into(),
+        serde_json::to_value(&row.levels).unwrap_or(Value::Null),
+    );
+    if let Some(o) = &row.occupancy {
+        m.insert(
+            "occupancy".into(),
+            serde_json::to_value(o).unwrap_or(Value::Null),
+        );
+    }
+    if !row.warnings.is_empty() {
+        m.insert("warnings".into(), json!(row.warnings));
+    }
+    Value::Object(m)
+}
+
+/// The `chainwell.sweep/1` document.
+pub fn sweep_document(result: &SweepResult) -> Value {
+    let mut doc = header_json(&result.header);
+    doc.insert("complete".into(), json!(result.complete));
+    doc.insert(
+        "rows".into(),
+        Value::Array(result.rows.iter().map(row_json).collect()),
+    );
+    Value::Object(doc)
+}
+
+/// The document as pretty JSON text with a final newline.
+pub fn sweep_text(result: &SweepResult) -> String {
+    let mut s = serde_json::to_string_pretty(&sweep_document(result)).unwrap_or_default();
+    s.push('\n');
+    s
 }

@@ -3,37 +3,50 @@
 
 use std::path::{Path, PathBuf};
 
+use chainwell::input::{self, Override};
+use chainwell::report;
+use chainwell::study::checkpoint::{self, Saver};
+use chainwell::study::fit::{self, Data, FitError, FitProgress, FitSpec, Free};
+use chainwell::study::quantity::Quantity;
+use chainwell::study::runner::Runner;
+use chainwell::study::target::{self, TargetError, TargetSpec};
 use serde_json::{json, Value};
 
-use super::sweep::Outcome;
-use super::CommandError;
-use crate::input::{self, Override};
-use crate::study::checkpoint::{self, Saver};
-use crate::study::fit::{self, Data, FitError, FitSpec, Free};
-use crate::study::quantity::Quantity;
-use crate::study::target::{self, TargetError, TargetSpec};
+use super::figure::FigureArgs;
+use super::{json_text, parse_overrides, CommandError, Outcome};
 
-/// Options of `chainwell fit`.
-#[derive(Debug, Clone, Default)]
-pub struct FitOptions {
-    /// `--set` overrides.
-    pub overrides: Vec<Override>,
-    /// `--data FILE.csv`.
+/// Flags of `chainwell fit`.
+#[derive(clap::Args, Debug)]
+pub struct FitArgs {
+    /// The input file (TOML).
+    pub input: PathBuf,
+    /// The measured series (CSV).
+    #[arg(long, value_name = "FILE.csv")]
     pub data: Option<PathBuf>,
-    /// `--free KEY[,KEY...]` (may be given several times).
+    /// The keys to adjust, comma-separated; start values come from the input or --set.
+    #[arg(long, value_name = "KEY[,KEY...]")]
     pub free: Vec<String>,
-    /// `--bounds KEY=LO:HI` (either side may be empty).
+    /// Bounds of a free key: KEY=LO:HI (either side may be left empty).
+    #[arg(long, value_name = "KEY=LO:HI")]
     pub bounds: Vec<String>,
-    /// `--target QUANTITY=VALUE`.
+    /// Solve for the one free key that gives QUANTITY=VALUE (e.g. wavelength_nm=550).
+    #[arg(long, value_name = "QUANTITY=VALUE")]
     pub target: Option<String>,
-    /// Print JSON instead of a table.
+    /// Override an input value: KEY=VALUE.
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub set: Vec<String>,
+    /// Print one JSON document on stdout.
+    #[arg(long)]
     pub json: bool,
-    /// `--save FILE`: the document (also when interrupted).
+    /// Also write the JSON document to FILE (the best values so far when interrupted).
+    #[arg(long, value_name = "FILE")]
     pub save: Option<PathBuf>,
-    /// `--resume FILE`: start from the values saved there.
+    /// Start from the values of an earlier (interrupted) fit saved in FILE.
+    #[arg(long, value_name = "FILE")]
     pub resume: Option<PathBuf>,
-    /// `--plot`: observed against model, residuals below.
-    pub figure: super::figure::FigureOptions,
+    /// Figure options (see `chainwell solve --help`).
+    #[command(flatten)]
+    pub plot: FigureArgs,
 }
 
 /// The current value of a dotted key in the input (after `--set`), in the
@@ -128,12 +141,12 @@ fn parse_bounds(flags: &[String]) -> Result<Vec<Bound>, CommandError> {
 }
 
 fn frees(
-    path: &Path,
-    opts: &FitOptions,
+    args: &FitArgs,
+    overrides: &[Override],
     resume: &[(String, f64)],
 ) -> Result<Vec<Free>, CommandError> {
-    let bounds = parse_bounds(&opts.bounds)?;
-    let keys: Vec<String> = opts
+    let bounds = parse_bounds(&args.bounds)?;
+    let keys: Vec<String> = args
         .free
         .iter()
         .flat_map(|f| f.split(','))
@@ -159,7 +172,7 @@ fn frees(
                 "--free {key}: the key is named twice"
             )));
         }
-        let (start, integer) = match current_value(path, &opts.overrides, key)? {
+        let (start, integer) = match current_value(&args.input, overrides, key)? {
             Some(v) => v,
             None => {
                 return Err(CommandError::Usage(format!(
@@ -196,9 +209,7 @@ fn frees(
 }
 
 fn text(doc: &Value) -> String {
-    let mut s = serde_json::to_string_pretty(doc).unwrap_or_default();
-    s.push('\n');
-    s
+    json_text(doc).unwrap_or_default()
 }
 
 fn eval_error(e: fit::EvalError) -> CommandError {
@@ -208,8 +219,8 @@ fn eval_error(e: fit::EvalError) -> CommandError {
     }
 }
 
-fn resume_values(opts: &FitOptions) -> Result<Vec<(String, f64)>, CommandError> {
-    let Some(file) = &opts.resume else {
+fn resume_values(args: &FitArgs) -> Result<Vec<(String, f64)>, CommandError> {
+    let Some(file) = &args.resume else {
         return Ok(vec![]);
     };
     let bad = |m: String| CommandError::Usage(format!("--resume {}: {m}", file.display()));
@@ -234,16 +245,18 @@ fn resume_values(opts: &FitOptions) -> Result<Vec<(String, f64)>, CommandError> 
 }
 
 /// Runs `chainwell fit`.
-pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
-    let (base, source) = input::load(path, &opts.overrides)?;
+pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
+    let overrides = parse_overrides(&args.set)?;
+    let figure = args.plot.check(&["fit"])?;
+    let (base, source) = input::load(&args.input, &overrides)?;
     let units = base.units.to_json();
-    let resume = resume_values(opts)?;
-    let free = frees(path, opts, &resume)?;
+    let resume = resume_values(&args)?;
+    let free = frees(&args, &overrides, &resume)?;
     let stop = checkpoint::interrupt_flag();
-    let saver = opts
+    let saver = args
         .save
         .as_deref()
-        .or(opts.resume.as_deref())
+        .or(args.resume.as_deref())
         .map(|p| Saver::new(p, std::time::Duration::ZERO));
     let save = |doc: &Value| -> Result<(), CommandError> {
         if let Some(s) = &saver {
@@ -253,8 +266,8 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
         }
         Ok(())
     };
-    if let Some(t) = &opts.target {
-        if opts.data.is_some() {
+    if let Some(t) = &args.target {
+        if args.data.is_some() {
             return Err(CommandError::Usage("--target and --data cannot be combined: a target solves for one value, a fit matches a series".into()));
         }
         let bad = || {
@@ -284,8 +297,8 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
             )));
         };
         let spec = TargetSpec {
-            path: path.to_path_buf(),
-            overrides: opts.overrides.clone(),
+            path: args.input.clone(),
+            overrides: overrides.clone(),
             key: f.key.clone(),
             bounds: (lo, hi),
             quantity,
@@ -301,15 +314,16 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
             e => CommandError::Compute(e.to_string()),
         })?;
         let input = json!({"file": source.name, "text": source.text, "overrides": source.overrides, "bounds": [lo, hi]});
-        let doc = r.to_json(&units, &input);
+        let doc = report::target::target_document(&r, &units, &input);
         save(&doc)?;
-        return Ok(Outcome {
-            stdout: if opts.json { text(&doc) } else { r.table() },
-            warnings: vec![],
-            failure: None,
-        });
+        let stdout = if args.json {
+            text(&doc)
+        } else {
+            report::target::target_table(&r)
+        };
+        return Ok(Outcome::printed(stdout, vec![]));
     }
-    let data_path = opts.data.as_ref().ok_or_else(|| {
+    let data_path = args.data.as_ref().ok_or_else(|| {
         CommandError::Usage("fit needs --data FILE.csv (or --target QUANTITY=VALUE)".into())
     })?;
     let data = Data::read(data_path).map_err(|e| {
@@ -326,39 +340,38 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
         "data": data.file, "free": free.iter().map(|f| json!({"key": f.key, "start": f.start, "lower": f.lower, "upper": f.upper})).collect::<Vec<_>>(),
     });
     let spec = FitSpec {
-        path: path.to_path_buf(),
-        overrides: opts.overrides.clone(),
+        path: args.input.clone(),
+        overrides,
         data,
         free,
     };
-    match fit::fit(&spec, Some(stop)) {
+    let render_progress = |p: &FitProgress| {
+        text(&report::fit::fit_progress_document(
+            &spec, p, &units, &input,
+        ))
+    };
+    let mut runner = Runner::new().with_stop(stop);
+    if let Some(s) = &saver {
+        runner = runner.with_checkpoint(s, &render_progress);
+    }
+    match fit::fit(&spec, &runner) {
         Ok(r) => {
-            let doc = r.to_json(&units, &input);
+            let doc = report::fit::fit_document(&r, &units, &input);
             save(&doc)?;
-            if opts.figure.path.is_some() {
-                opts.figure.kind(&["fit"])?;
+            if let Some(plan) = &figure {
                 let energy_unit = units["energy"].as_str().unwrap_or("eV");
-                opts.figure.render(&super::figure::fit(&r, energy_unit))?;
+                plan.render(&report::figure::fit(&r, energy_unit))?;
             }
-            Ok(Outcome {
-                stdout: if opts.json { text(&doc) } else { r.table() },
-                warnings: vec![],
-                failure: None,
-            })
+            let stdout = if args.json {
+                text(&doc)
+            } else {
+                report::fit::fit_table(&r)
+            };
+            Ok(Outcome::printed(stdout, vec![]))
         }
         Err(FitError::Interrupted { best, evaluations }) => {
-            let doc = json!({
-                "format": fit::FORMAT,
-                "program": crate::report::json::program(),
-                "units": units,
-                "complete": false,
-                "key": spec.data.key,
-                "quantity": spec.data.quantity.name(),
-                "parameters": spec.free.iter().zip(&best).map(|(f, v)| json!({"key": f.key, "value": v, "uncertainty": null, "start": f.start})).collect::<Vec<_>>(),
-                "evaluations": evaluations,
-                "rows": [],
-                "input": input,
-            });
+            let progress = FitProgress { best, evaluations };
+            let doc = report::fit::fit_progress_document(&spec, &progress, &units, &input);
             save(&doc)?;
             let place = saver
                 .as_ref()
@@ -372,7 +385,7 @@ pub fn run(path: &Path, opts: &FitOptions) -> Result<Outcome, CommandError> {
                     "; rerun with --save FILE to keep the best values so far".into()
                 });
             Ok(Outcome {
-                stdout: if opts.json { text(&doc) } else { String::new() },
+                stdout: if args.json { text(&doc) } else { String::new() },
                 warnings: vec![],
                 failure: Some(CommandError::Compute(format!(
                     "interrupted after {evaluations} model evaluations{place}"

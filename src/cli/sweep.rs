@@ -4,46 +4,46 @@ use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
+use chainwell::report;
+use chainwell::study::cases::{CaseError, CaseGrid, Shard, Vary};
+use chainwell::study::checkpoint::{self, Saver};
+use chainwell::study::merge;
+use chainwell::study::runner::Runner;
+use chainwell::study::sweep::{self, SweepError, SweepResult, SweepRow, SweepSpec};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 
-use super::CommandError;
-use crate::study::cases::{CaseGrid, Shard, Vary};
-use crate::study::checkpoint::{self, Saver};
-use crate::study::sweep::{self, Hooks, SweepError, SweepResult, SweepRow, SweepSpec};
-use crate::study::{merge, render};
+use super::figure::FigureArgs;
+use super::{parse_overrides, CommandError, Outcome};
 
-/// Options of `chainwell sweep`.
-#[derive(Debug, Clone, Default)]
-pub struct SweepOptions {
-    /// `--set` overrides.
-    pub overrides: Vec<crate::input::Override>,
-    /// `--vary` flags as written.
+/// Flags of `chainwell sweep`.
+#[derive(clap::Args, Debug)]
+pub struct SweepArgs {
+    /// The input file (TOML).
+    pub input: PathBuf,
+    /// A key and its values: KEY=START:STOP[:STEP] or KEY=V1,V2,... (repeat for a grid).
+    #[arg(long = "vary", value_name = "KEY=VALUES")]
     pub vary: Vec<String>,
-    /// `--shard I/N`.
+    /// Override an input value: KEY=VALUE (e.g. grid.points=20000).
+    #[arg(long = "set", value_name = "KEY=VALUE")]
+    pub set: Vec<String>,
+    /// Run only cases I, I+N, I+2N, ... (I = 1..N), for job arrays; join with `chainwell merge`.
+    #[arg(long, value_name = "I/N")]
     pub shard: Option<String>,
-    /// Print JSON instead of a table.
+    /// Print one JSON document on stdout.
+    #[arg(long)]
     pub json: bool,
-    /// `--csv FILE`: tidy long CSV.
+    /// Also write a tidy CSV (one line per case and level).
+    #[arg(long, value_name = "FILE")]
     pub csv: Option<PathBuf>,
-    /// `--save FILE`: the document, kept up to date while the sweep runs.
+    /// Keep the JSON document in FILE, updated while the sweep runs.
+    #[arg(long, value_name = "FILE")]
     pub save: Option<PathBuf>,
-    /// `--resume FILE`: continue the sweep saved there (and keep saving to it).
+    /// Continue the interrupted sweep saved in FILE (and keep saving to it).
+    #[arg(long, value_name = "FILE")]
     pub resume: Option<PathBuf>,
-    /// `--plot`: figures `levels` (default), `gap`, `wavelength` against
-    /// the first varied key.
-    pub figure: super::figure::FigureOptions,
-}
-
-/// What a command prints, and how it ends.
-#[derive(Debug)]
-pub struct Outcome {
-    /// Text for stdout.
-    pub stdout: String,
-    /// Lines for stderr.
-    pub warnings: Vec<String>,
-    /// Set when the command stopped early (Ctrl-C): the output above is
-    /// what was finished, and this is the error to exit with.
-    pub failure: Option<CommandError>,
+    /// Figure options (see `chainwell solve --help`).
+    #[command(flatten)]
+    pub plot: FigureArgs,
 }
 
 /// Seconds between progress saves.
@@ -64,7 +64,7 @@ fn case_error(spec: &SweepSpec, e: SweepError) -> CommandError {
         } => {
             let c = spec.grid.case(case);
             match sweep::load_case(spec, &c) {
-                Ok((model, text)) => match super::solve::solve_error(&model, &text, source) {
+                Ok((model, text)) => match source.locate(&model, &text).into() {
                     CommandError::Input(i) => {
                         let mut i = sweep::vary_error(i, spec, &c);
                         if !i.location.file.starts_with("--vary") {
@@ -108,51 +108,53 @@ fn collect_warnings(result: &SweepResult) -> Vec<String> {
 /// Renders a result as the command prints it.
 pub fn render(result: &SweepResult, json: bool) -> String {
     if json {
-        result.to_json_text()
+        report::sweep::sweep_text(result)
     } else {
-        render::sweep_table(result)
+        report::sweep::sweep_table(result)
     }
 }
 
 /// Writes the CSV file, when asked.
 pub fn write_csv(result: &SweepResult, csv: Option<&Path>) -> Result<(), CommandError> {
     if let Some(path) = csv {
-        crate::output::write_atomic(path, render::sweep_csv(result).as_bytes())
+        chainwell::output::write_atomic(path, report::sweep::sweep_csv(result).as_bytes())
             .map_err(|e| CommandError::Compute(format!("cannot write {}: {e}", path.display())))?;
     }
     Ok(())
 }
 
 /// Runs `chainwell sweep`.
-pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
-    if opts.vary.is_empty() {
+pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
+    let overrides = parse_overrides(&args.set)?;
+    let figure = args.plot.check(&["levels", "gap", "wavelength"])?;
+    if args.vary.is_empty() {
         return Err(CommandError::Usage(
             "sweep needs at least one --vary KEY=START:STOP[:STEP] or --vary KEY=V1,V2,...".into(),
         ));
     }
-    let usage = |e: crate::study::cases::CaseError| CommandError::Usage(e.to_string());
-    let varies = opts
+    let usage = |e: CaseError| CommandError::Usage(e.to_string());
+    let varies = args
         .vary
         .iter()
         .map(|v| Vary::parse(v))
         .collect::<Result<Vec<_>, _>>()
         .map_err(usage)?;
     let grid = CaseGrid::new(varies).map_err(usage)?;
-    let shard = opts
+    let shard = args
         .shard
         .as_deref()
         .map(Shard::parse)
         .transpose()
         .map_err(usage)?;
     let spec = SweepSpec {
-        path: path.to_path_buf(),
-        overrides: opts.overrides.clone(),
+        path: args.input.clone(),
+        overrides,
         grid,
         shard,
     };
     let prepared = sweep::prepare(&spec).map_err(|e| case_error(&spec, e))?;
     let mut done: Vec<SweepRow> = Vec::new();
-    if let Some(file) = &opts.resume {
+    if let Some(file) = &args.resume {
         let previous = SweepResult::read(file).map_err(CommandError::Usage)?;
         if let Some(what) = merge::differs(&previous.header, &prepared.header) {
             return Err(CommandError::Usage(format!(
@@ -172,14 +174,13 @@ pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
             .filter(|r| shard.is_none_or(|s| s.takes(r.case)) && r.case <= prepared.header.cases)
             .collect();
     }
-    let saver = opts
+    let saver = args
         .save
         .as_deref()
-        .or(opts.resume.as_deref())
+        .or(args.resume.as_deref())
         .map(|p| Saver::new(p, SAVE_EVERY));
-    let stop = checkpoint::interrupt_flag();
     let interactive =
-        (!opts.json || std::io::stdout().is_terminal()) && std::io::stderr().is_terminal();
+        (!args.json || std::io::stdout().is_terminal()) && std::io::stderr().is_terminal();
     let bar = ProgressBar::with_draw_target(
         Some(prepared.cases.len() as u64),
         ProgressDrawTarget::hidden(),
@@ -190,49 +191,36 @@ pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
         bar.set_style(style);
     }
     let started = Instant::now();
-    let header = prepared.header.clone();
-    let save_error = std::sync::Mutex::new(None::<String>);
-    let on_row = |rows: &[SweepRow], _total: usize| {
+    let progress = |finished: usize, _total: usize| {
         if interactive && bar.is_hidden() && started.elapsed() > BAR_AFTER {
             bar.set_draw_target(ProgressDrawTarget::stderr());
         }
-        bar.set_position(rows.len() as u64);
-        if let Some(s) = &saver {
-            let r = s.save(false, || {
-                let mut sorted = rows.to_vec();
-                sorted.sort_by_key(|r| r.case);
-                SweepResult {
-                    header: header.clone(),
-                    rows: sorted,
-                    complete: false,
-                }
-                .to_json_text()
-            });
-            if let Err(e) = r {
-                *save_error.lock().unwrap_or_else(|p| p.into_inner()) =
-                    Some(format!("cannot write {}: {e}", s.path().display()));
-            }
-        }
+        bar.set_position(finished as u64);
     };
-    let hooks = Hooks {
-        stop: Some(stop),
-        on_row: Some(&on_row),
-    };
-    let result = sweep::run(&prepared, done, &hooks).map_err(|e| case_error(&spec, e));
+    let render_doc = |r: &SweepResult| report::sweep::sweep_text(r);
+    let mut runner = Runner::new()
+        .with_stop(checkpoint::interrupt_flag())
+        .with_progress(&progress);
+    if let Some(s) = &saver {
+        runner = runner.with_checkpoint(s, &render_doc);
+    }
+    let result = sweep::run(&prepared, done, &runner).map_err(|e| case_error(&spec, e));
     bar.finish_and_clear();
     let result = result?;
-    if let Some(m) = save_error.into_inner().unwrap_or_else(|p| p.into_inner()) {
+    if let Some(m) = runner.save_error() {
         return Err(CommandError::Compute(m));
     }
     if let Some(s) = &saver {
-        s.save(true, || result.to_json_text()).map_err(|e| {
-            CommandError::Compute(format!("cannot write {}: {e}", s.path().display()))
-        })?;
+        s.save(true, || report::sweep::sweep_text(&result))
+            .map_err(|e| {
+                CommandError::Compute(format!("cannot write {}: {e}", s.path().display()))
+            })?;
     }
-    write_csv(&result, opts.csv.as_deref())?;
-    if opts.figure.path.is_some() && !result.rows.is_empty() {
-        let kind = opts.figure.kind(&["levels", "gap", "wavelength"])?;
-        opts.figure.render(&super::figure::sweep(&result, kind))?;
+    write_csv(&result, args.csv.as_deref())?;
+    if let Some(plan) = &figure {
+        if !result.rows.is_empty() {
+            plan.render(&report::figure::sweep(&result, plan.kind))?;
+        }
     }
     let failure = (!result.complete).then(|| {
         let place = saver
@@ -251,7 +239,7 @@ pub fn run(path: &Path, opts: &SweepOptions) -> Result<Outcome, CommandError> {
         ))
     });
     Ok(Outcome {
-        stdout: render(&result, opts.json),
+        stdout: render(&result, args.json),
         warnings: collect_warnings(&result),
         failure,
     })

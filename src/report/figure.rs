@@ -1,138 +1,12 @@
-//! Figure options shared by every command's `--plot`, and the figures built
-//! from a command's results (in the input's units).
+//! The figures built from results, in the input's units, ready for
+//! [`crate::plot::render`].
 
-use std::path::{Path, PathBuf};
-
-use super::CommandError;
 use crate::grid::Boundary;
 use crate::input::Model;
 use crate::observables::Spectrum;
 use crate::pipeline::Solution;
-use crate::plot::{
-    self, ConvergeFigure, ErrorSeries, Figure, Size, StateLevel, StatesFigure, Stick, Style,
-};
+use crate::plot::{self, ConvergeFigure, ErrorSeries, Figure, StateLevel, StatesFigure, Stick};
 use crate::study::converge::Convergence;
-
-/// `--plot` and the options that shape the figure.
-#[derive(Debug, Clone, Default)]
-pub struct FigureOptions {
-    /// Where to write the figure (`.svg` or `.png`).
-    pub path: Option<PathBuf>,
-    /// Which figure, where a command draws more than one.
-    pub kind: Option<String>,
-    /// `WxH` in pixels, or `WxHcm` in centimetres (at `dpi`).
-    pub size: Option<String>,
-    /// Dots per inch for sizes in centimetres (default 300).
-    pub dpi: Option<f64>,
-    /// Type size in points.
-    pub font_pt: Option<f64>,
-    /// Line width in points.
-    pub line_pt: Option<f64>,
-    /// `LO:HI` energy window, input energy units.
-    pub energy_window: Option<String>,
-    /// `LO:HI` horizontal window, in the figure's x unit.
-    pub x_window: Option<String>,
-    /// Levels to show, e.g. `1,2,5`.
-    pub levels: Option<String>,
-}
-
-fn usage(msg: String) -> CommandError {
-    CommandError::Usage(msg)
-}
-
-fn window(flag: &str, text: &Option<String>) -> Result<Option<(f64, f64)>, CommandError> {
-    let Some(t) = text else { return Ok(None) };
-    let bad = || usage(format!("{flag} {t}: expected LO:HI with LO < HI"));
-    let (a, b) = t.split_once(':').ok_or_else(bad)?;
-    let (a, b): (f64, f64) = (
-        a.trim().parse().map_err(|_| bad())?,
-        b.trim().parse().map_err(|_| bad())?,
-    );
-    if !(a.is_finite() && b.is_finite() && a < b) {
-        return Err(bad());
-    }
-    Ok(Some((a, b)))
-}
-
-impl FigureOptions {
-    /// The plot style these options ask for.
-    pub fn style(&self) -> Result<Style, CommandError> {
-        let mut style = Style::default();
-        if let Some(s) = &self.size {
-            let bad = || {
-                usage(format!(
-                    "--size {s}: expected WxH (pixels) or WxHcm, e.g. 1200x800 or 16x10cm"
-                ))
-            };
-            let (body, cm) = match s.strip_suffix("cm") {
-                Some(b) => (b, true),
-                None => (s.as_str(), false),
-            };
-            let (w, h) = body.split_once('x').ok_or_else(bad)?;
-            style.size = if cm {
-                Size::Centimetres {
-                    w: w.trim().parse().map_err(|_| bad())?,
-                    h: h.trim().parse().map_err(|_| bad())?,
-                    dpi: self.dpi.unwrap_or(300.0),
-                }
-            } else {
-                Size::Pixels {
-                    w: w.trim().parse().map_err(|_| bad())?,
-                    h: h.trim().parse().map_err(|_| bad())?,
-                }
-            };
-        }
-        if let Some(f) = self.font_pt {
-            style.font_pt = f;
-        }
-        if let Some(l) = self.line_pt {
-            style.line_pt = l;
-        }
-        style.energy_window = window("--energy-window", &self.energy_window)?;
-        style.x_window = window("--x-window", &self.x_window)?;
-        if let Some(l) = &self.levels {
-            let list: Result<Vec<usize>, _> =
-                l.split(',').map(|x| x.trim().parse::<usize>()).collect();
-            style.levels = Some(list.map_err(|_| {
-                usage(format!(
-                    "--levels {l}: expected level numbers such as 1,2,5"
-                ))
-            })?);
-        }
-        Ok(style)
-    }
-
-    /// Checks the figure kind against the command's choices; the first is
-    /// the default.
-    pub fn kind<'a>(&'a self, choices: &[&'a str]) -> Result<&'a str, CommandError> {
-        match &self.kind {
-            None => Ok(choices[0]),
-            Some(k) if choices.contains(&k.as_str()) => Ok(k.as_str()),
-            Some(k) => Err(usage(format!(
-                "--figure {k}: this command draws {}",
-                choices.join(", ")
-            ))),
-        }
-    }
-
-    /// Renders `figure` to the `--plot` path, if one was given.
-    pub fn render(&self, figure: &Figure) -> Result<(), CommandError> {
-        let Some(path) = &self.path else {
-            return Ok(());
-        };
-        let style = self.style()?;
-        render_to(figure, &style, path)
-    }
-}
-
-fn render_to(figure: &Figure, style: &Style, path: &Path) -> Result<(), CommandError> {
-    plot::render(figure, style, path).map_err(|e| match e {
-        plot::PlotError::UnknownFormat(_)
-        | plot::PlotError::BadSize(_)
-        | plot::PlotError::BadStyle(_) => usage(format!("--plot {}: {e}", path.display())),
-        other => CommandError::Compute(format!("cannot draw {}: {other}", path.display())),
-    })
-}
 
 /// The potential with each level across its allowed region and its
 /// wavefunction (or density) drawn at its energy.
@@ -226,7 +100,7 @@ pub fn converge(model: &Model, conv: &Convergence) -> Figure {
 
 /// Band structure E(k) with the gaps shaded, and the HOMO and LUMO of
 /// finite chains beside it when asked.
-pub fn bands(model: &Model, result: &super::bands::BandsResult) -> Figure {
+pub fn bands(model: &Model, result: &crate::study::bands::BandsResult) -> Figure {
     let u = &model.units;
     let per_unit = u.length.in_angstrom();
     let k = result.structure.k.iter().map(|k| k * per_unit).collect();

@@ -1,67 +1,16 @@
-//! JSON documents of the outside contract (`chainwell.solve/1`, ...).
+//! The `chainwell.solve/1` document: levels, filling, transitions, states,
+//! diagnostics, warnings, timing and the input echo.
 
 use serde_json::{json, Map, Value};
 
+use super::envelope::{input_echo, program};
 use crate::input::{Model, SourceText};
+use crate::pipeline::record::{level_records, occupancy_record};
 use crate::pipeline::Solution;
-
-/// Program name and version, in every document.
-pub fn program() -> Value {
-    json!({"name": "chainwell", "version": env!("CARGO_PKG_VERSION")})
-}
-
-/// The echo of the input: the file's text, the overrides and the checked
-/// values that matter for reproducing the run.
-pub fn input_echo(model: &Model, source: &SourceText) -> Value {
-    let u = &model.units;
-    json!({
-        "file": source.name,
-        "text": source.text,
-        "overrides": source.overrides,
-        "checked": {
-            "title": model.title,
-            "mass": model.mass,
-            "domain": {
-                "from": u.length_out(model.domain.from),
-                "to": u.length_out(model.domain.to),
-                "boundary": model.domain.boundary,
-            },
-            "grid": model.grid,
-            "levels": model.levels,
-            "terms": model.potential.terms.len(),
-            "chain": model.chain,
-        }
-    })
-}
 
 /// The `levels` array.
 pub fn levels(model: &Model, sol: &Solution) -> Value {
-    let u = &model.units;
-    Value::Array(
-        sol.levels
-            .iter()
-            .map(|l| {
-                let mut m = Map::new();
-                m.insert("n".into(), json!(l.n));
-                m.insert("energy".into(), json!(u.energy_out(l.energy)));
-                m.insert("nodes".into(), json!(l.nodes));
-                if let Some(b) = l.box_energy {
-                    m.insert("box_energy".into(), json!(u.energy_out(b)));
-                    m.insert("box_ratio".into(), json!(l.energy / b));
-                }
-                if let Some(e) = l.error_estimate {
-                    m.insert("error_estimate".into(), json!(u.energy_out(e)));
-                }
-                if let Some(e) = l.extrapolated {
-                    m.insert("extrapolated".into(), json!(u.energy_out(e)));
-                }
-                if let Some(q) = l.observed_order {
-                    m.insert("observed_order".into(), json!(q));
-                }
-                Value::Object(m)
-            })
-            .collect(),
-    )
+    serde_json::to_value(level_records(model, sol)).unwrap_or(Value::Null)
 }
 
 /// The `degeneracies` array of a ring: every computed level in one group
@@ -144,17 +93,7 @@ pub fn solve_document(
 
 /// The `occupancy` object.
 pub fn occupancy(model: &Model, o: &crate::observables::Occupancy) -> Value {
-    let u = &model.units;
-    json!({
-        "electrons": o.electrons,
-        "homo": o.homo,
-        "lumo": o.lumo,
-        "singly_occupied": o.singly_occupied,
-        "gap": o.gap.map(|g| u.energy_out(g)),
-        "wavelength_nm": o.wavelength_nm,
-        "total_energy": u.energy_out(o.total_energy),
-        "total_energy_complete": o.total_energy_complete,
-    })
+    serde_json::to_value(occupancy_record(model, o)).unwrap_or(Value::Null)
 }
 
 /// The `transitions` array.

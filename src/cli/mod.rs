@@ -1,0 +1,117 @@
+//! The command layer of the `chainwell` binary (not library API): each
+//! subcommand's flags (clap), checked into typed values before any input is
+//! read, then the library call, then what to print; errors become exit
+//! statuses (2 bad input or usage, 1 a computation that could not finish).
+
+pub mod bands;
+pub mod converge;
+pub mod figure;
+pub mod fit;
+pub mod merge;
+pub mod solve;
+pub mod starter;
+pub mod sweep;
+
+use std::io::Write;
+
+use chainwell::input::{InputError, Override};
+use chainwell::pipeline::Fault;
+
+/// Why a command failed.
+#[derive(Debug, thiserror::Error)]
+pub enum CommandError {
+    /// A fault in the input file or an override (exit status 2).
+    #[error("{}", .0.render())]
+    Input(#[from] InputError),
+    /// A fault in the command line (exit status 2).
+    #[error("error: {0}")]
+    Usage(String),
+    /// A computation that could not finish (exit status 1).
+    #[error("error: {0}")]
+    Compute(String),
+}
+
+impl CommandError {
+    /// The exit status for this error.
+    pub fn exit_code(&self) -> u8 {
+        match self {
+            CommandError::Input(_) | CommandError::Usage(_) => 2,
+            CommandError::Compute(_) => 1,
+        }
+    }
+}
+
+impl From<Fault> for CommandError {
+    fn from(f: Fault) -> Self {
+        match f {
+            Fault::Input(i) => CommandError::Input(i),
+            Fault::Usage(m) => CommandError::Usage(m),
+            Fault::Compute(m) => CommandError::Compute(m),
+        }
+    }
+}
+
+/// What a command prints, and how it ends.
+#[derive(Debug, Default)]
+pub struct Outcome {
+    /// Text for stdout.
+    pub stdout: String,
+    /// Lines for stderr (each printed as `warning: ...`).
+    pub warnings: Vec<String>,
+    /// Set when the command stopped early (Ctrl-C): the output above is
+    /// what was finished, and this is the error to exit with.
+    pub failure: Option<CommandError>,
+}
+
+impl Outcome {
+    /// An outcome that prints `stdout` and these warnings.
+    pub fn printed(stdout: String, warnings: Vec<String>) -> Self {
+        Self {
+            stdout,
+            warnings,
+            failure: None,
+        }
+    }
+
+    /// Prints the warnings and the text, and returns how the command ends.
+    pub fn finish(self) -> Result<(), CommandError> {
+        for w in &self.warnings {
+            eprintln!("warning: {w}");
+        }
+        print_stdout(&self.stdout)?;
+        match self.failure {
+            Some(e) => Err(e),
+            None => Ok(()),
+        }
+    }
+}
+
+/// Parses `--set KEY=VALUE` flags.
+pub fn parse_overrides(sets: &[String]) -> Result<Vec<Override>, CommandError> {
+    sets.iter()
+        .map(|s| Override::parse(s).map_err(|m| CommandError::Usage(format!("--set {s}: {m}"))))
+        .collect()
+}
+
+/// Pretty JSON with a final newline.
+pub fn json_text(doc: &serde_json::Value) -> Result<String, CommandError> {
+    let mut s =
+        serde_json::to_string_pretty(doc).map_err(|e| CommandError::Compute(e.to_string()))?;
+    s.push('\n');
+    Ok(s)
+}
+
+/// Writes to stdout; a closed pipe (`| head`) is not an error of ours.
+pub fn print_stdout(text: &str) -> Result<(), CommandError> {
+    let mut stdout = std::io::stdout().lock();
+    match stdout
+        .write_all(text.as_bytes())
+        .and_then(|_| stdout.flush())
+    {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(CommandError::Compute(format!(
+            "cannot write to stdout: {e}"
+        ))),
+    }
+}

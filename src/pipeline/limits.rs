@@ -1,0 +1,59 @@
+//! The pipeline's thresholds and its memory model, in one place: what a
+//! solve may plan to allocate, which residuals and rounding levels are
+//! accepted, and when a number earns a warning.
+
+/// Bytes in a GiB.
+pub const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
+
+/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
+/// machines chainwell is tested on, so that a mistyped `grid.points` is
+/// refused at once instead of exhausting the machine.
+pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
+
+/// Estimated bytes of a solve on `points` unknowns with a stencil of
+/// half-width `half_width` and `levels` levels: the banded matrix
+/// (`half_width + 1` diagonals), one vector per level, and four work
+/// vectors (positions, potential, two for the eigen-solver), in `f64`:
+/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
+/// so that it cannot overflow.
+pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
+    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
+}
+
+/// Energies are blurred by rounding by about `ROUNDING_FACTOR * eps *
+/// ||H||_1`: LAPACK's error bounds for computed symmetric eigenvalues are of
+/// the form `p(n) eps ||H||` with a modestly growing `p(n)` (E. Anderson et
+/// al., *LAPACK Users' Guide*, 3rd ed., SIAM 1999, sec. 4.7); 10 is a
+/// common practice, no source.
+pub const ROUNDING_FACTOR: f64 = 10.0;
+
+/// Largest residual ratio `||H z - E z||_1 / (||H||_1 N eps)` accepted for a
+/// returned eigenpair. LAPACK's tests fail a routine above 30 (the DSTT21
+/// threshold); a pair that did not converge is many orders above that. 1e4
+/// leaves a wide margin (common practice, no source).
+pub const RESIDUAL_LIMIT: f64 = 1e4;
+
+/// Points per half-wavelength below which a level is poorly resolved
+/// (common practice, no source).
+pub const MIN_POINTS_PER_LOBE: f64 = 10.0;
+
+/// Rounding, relative to the domain's lowest box level, above which the
+/// energies' last digits are flagged as noise (common practice, no source).
+pub const ROUNDING_WARNING: f64 = 1e-6;
+
+/// Two adjacent levels closer than this many times the rounding level are
+/// treated as degenerate: their eigenvectors may be any mixture of the two
+/// (the angle of an eigenvector's error is about rounding / gap; Davis and
+/// Kahan, SIAM J. Numer. Anal. 7, 1 (1970)).
+pub const DEGENERATE_FACTOR: f64 = 1e2;
+
+/// Grids with at most this many points skip the order-2 guesses: there the
+/// shift-invert path takes a fraction of a second anyway, and the extra
+/// order-2 solve would not pay for itself (common practice, no source).
+pub const GUESS_MIN_POINTS: usize = 5000;
+
+/// Dimensionless tolerance for calling two ring levels degenerate (see
+/// [`crate::observables::group_levels`]): far above the eigen-solver's round-off,
+/// far below any physical splitting worth reporting (common practice, no
+/// source).
+pub const DEGENERACY_TOLERANCE: f64 = 1e-7;
