@@ -11,6 +11,23 @@ use crate::potential::chain::ChainSpec;
 use crate::potential::Potential;
 use crate::units::Units;
 
+/// Default finite-difference order when `[grid]` gives none.
+pub const DEFAULT_ORDER: u32 = 4;
+/// Default grid spacing in Å when `[grid]` gives neither points nor spacing
+/// (about 100 points per ångström; common practice, no source).
+pub const DEFAULT_SPACING_ANGSTROM: f64 = 0.01;
+/// Default number of levels when neither `count` nor `electrons` is given.
+pub const DEFAULT_COUNT: usize = 10;
+/// Default chain bond length, Å (an average C–C bond of a polyene, about
+/// 1.40 Å; from memory).
+pub const DEFAULT_BOND_LENGTH: f64 = 1.40;
+/// Default width (standard deviation) of a chain site, Å.
+pub const DEFAULT_SITE_WIDTH: f64 = 0.5;
+/// Default full width at half maximum of an absorption band, eV.
+pub const DEFAULT_FWHM_EV: f64 = 0.3;
+/// Default upper limit on grid points when refining to a tolerance.
+pub const DEFAULT_MAX_POINTS: usize = 2_000_000;
+
 /// How the grid is chosen.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 #[serde(rename_all = "lowercase")]
