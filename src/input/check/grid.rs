@@ -5,10 +5,11 @@ use std::ops::Range;
 
 use toml::Spanned;
 
+use super::number;
 use super::{Checker, Result};
-use crate::grid::{Boundary, Domain, Order, Scheme};
+use crate::grid::{Boundary, Domain, Grid, Order, Scheme};
 use crate::input::model::*;
-use crate::input::raw::{RawDomain, RawGrid};
+use crate::input::raw::{RawDomain, RawGrid, RawInput};
 
 impl Checker<'_> {
     pub(super) fn check_domain(&self, d: &Spanned<RawDomain>) -> Result<Domain> {
@@ -150,16 +151,82 @@ impl Checker<'_> {
                     format!("must be 2, 4, 6 or 8, got {v}"),
                 )
             })?;
-            if spec.scheme == Scheme::Numerov && v != 4 {
+            // Only Numerov has an order of its own: a written order must
+            // agree with it.
+            let own = spec.accuracy_order();
+            if spec.order.get() != own {
                 return Err(self.err(
                     o.span(),
                     "grid.order",
-                    format!("the Numerov scheme is of order 4; remove grid.order or set it to 4 (got {v})"),
+                    format!("the Numerov scheme is of order {own}; remove grid.order or set it to {own} (got {v})"),
                 ));
             }
-        } else if spec.scheme == Scheme::Numerov {
-            spec.order = Order::new(4).expect("4 is allowed");
+        } else {
+            spec.order =
+                Order::new(spec.accuracy_order()).expect("a scheme's own order is allowed");
         }
         Ok(spec)
+    }
+
+    /// A grid chosen by spacing (written, or the default) must leave the
+    /// stencil its [`GridSpec::min_points`]. A written spacing is at fault
+    /// when it does not; with the default spacing, the key that made the box
+    /// so short is: `chain.bond_length` (or `chain.end_extension`) for a
+    /// chain, `domain.to` for a domain. A tolerance starts from the default
+    /// spacing but refines until the levels are resolved, so it is not
+    /// refused here.
+    pub(super) fn check_grid_fits(
+        &self,
+        spec: &GridSpec,
+        domain: &Domain,
+        raw: &RawInput,
+    ) -> Result<()> {
+        let Resolution::Spacing(h) = spec.resolution else {
+            return Ok(());
+        };
+        let min = spec.min_points();
+        if Grid::with_spacing(domain, h).points >= min {
+            return Ok(());
+        }
+        let u = &self.units;
+        let needs = format!(
+            "fewer than the {min} points an order-{} stencil needs",
+            spec.accuracy_order()
+        );
+        let written = raw.grid.as_ref().and_then(|g| g.get_ref().spacing.as_ref());
+        if let Some(s) = written {
+            return Err(self.err(
+                s.span(),
+                "grid.spacing",
+                format!(
+                    "{} is too coarse for a domain of length {}: it leaves {needs}",
+                    s.get_ref(),
+                    number(u.length_out(domain.length()))
+                ),
+            ));
+        }
+        let chain = raw.chain.as_ref().map(Spanned::get_ref);
+        let (key, span) = match (chain, &raw.domain) {
+            (Some(c), _) => match (&c.bond_length, &c.end_extension) {
+                (Some(b), _) => ("chain.bond_length", b.span()),
+                (None, Some(e)) => ("chain.end_extension", e.span()),
+                (None, None) => ("chain.bonds", c.bonds.span()),
+            },
+            (None, Some(d)) => match &d.get_ref().to {
+                Some(to) => ("domain.to", to.span()),
+                None => ("domain", d.span()),
+            },
+            (None, None) => ("domain", 0..0),
+        };
+        Err(self.err(
+            span,
+            key,
+            format!(
+                "makes the box {} {l} long: the default grid spacing of {} {l} leaves {needs}; make the box longer or set grid.points",
+                number(u.length_out(domain.length())),
+                number(u.length_out(h)),
+                l = u.length.label(),
+            ),
+        ))
     }
 }

@@ -39,9 +39,10 @@ impl Checker<'_> {
         let count = match raw.and_then(|r| r.count.as_ref()) {
             Some(c) => self.count(c, "levels.count", 1)?,
             None => match (electrons, below) {
-                // Enough for the LUMO and a few levels above it.
-                (Some(e), None) => (e.div_ceil(2) + 4)
-                    .saturating_sub(first - 1)
+                // Enough for the LUMO and three levels above it: the levels
+                // from `first` up to HOMO + 4, HOMO = ceil(e / 2).
+                (Some(e), None) => (e.div_ceil(2) + 4 + 1)
+                    .saturating_sub(first)
                     .max(DEFAULT_COUNT),
                 (_, Some(_)) => usize::MAX,
                 (None, None) => DEFAULT_COUNT,
@@ -52,6 +53,8 @@ impl Checker<'_> {
             first,
             below,
             electrons,
+            count_given: raw.and_then(|r| r.count.as_ref()).is_some(),
+            first_given: raw.and_then(|r| r.first.as_ref()).is_some(),
             electrons_given,
         })
     }
@@ -84,5 +87,49 @@ impl Checker<'_> {
             spec.all_pairs = *a.get_ref();
         }
         Ok(spec)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use crate::input::model::{LevelSpec, DEFAULT_COUNT};
+
+    fn levels(extra: &str) -> LevelSpec {
+        let text = format!("[chain]\nbonds = 7\n[grid]\npoints = 200\n{extra}");
+        let (model, _) = crate::input::load_str("t.toml", text, Path::new("."), &[]).unwrap();
+        model.levels
+    }
+
+    #[test]
+    fn what_was_written_is_recorded() {
+        let l = levels("");
+        assert!(!l.count_given && !l.first_given && !l.electrons_given);
+        // A chain of 8 atoms has 8 pi electrons: HOMO 4, levels up to 8
+        // wanted, fewer than the default count.
+        assert_eq!((l.first, l.count, l.electrons), (1, DEFAULT_COUNT, Some(8)));
+        let l = levels("[levels]\ncount = 3\n");
+        assert!(l.count_given && !l.first_given && !l.electrons_given);
+        let l = levels("[levels]\nfirst = 2\nelectrons = 6\n");
+        assert!(!l.count_given && l.first_given && l.electrons_given);
+        assert_eq!(l.window(), (1, DEFAULT_COUNT));
+    }
+
+    #[test]
+    fn overrides_count_as_written() {
+        let text = "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 100\n".to_string();
+        let sets = [crate::input::Override::parse("levels.count=4").unwrap()];
+        let (model, _) = crate::input::load_str("t.toml", text, Path::new("."), &sets).unwrap();
+        assert!(model.levels.count_given);
+        assert_eq!(model.levels.count, 4);
+    }
+
+    #[test]
+    fn many_electrons_ask_for_levels_up_to_four_above_the_homo() {
+        // 30 electrons: HOMO 15, levels up to 19 from first = 3: 17 levels.
+        let l = levels("[levels]\nfirst = 3\nelectrons = 30\n");
+        assert_eq!(l.count, 17);
+        assert_eq!(l.last(), 19);
     }
 }

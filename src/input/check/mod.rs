@@ -4,14 +4,13 @@
 //! Every value is range-checked here, converted to internal units, and every
 //! fault is reported with the location of the value at fault. One file per
 //! part of the input: `grid` (`[domain]`, `[grid]`), `levels` (`[levels]`,
-//! `[spectrum]`), `chain` (`[chain]`), `terms` (`[[term]]`, formulas) and
-//! `table` (table terms and their CSV files); this file holds the entry
-//! point, `[units]`, `[particle]` and the shared value checks.
+//! `[spectrum]`), `chain` (`[chain]`) and `terms` (`[[term]]`, formulas and
+//! tables among them); this file holds the entry point, `[units]`,
+//! `[particle]` and the shared value checks.
 
 mod chain;
 mod grid;
 mod levels;
-mod table;
 mod terms;
 
 use std::collections::BTreeMap;
@@ -23,26 +22,30 @@ use toml::Spanned;
 use super::error::{InputError, Location, SourceText};
 use super::model::*;
 use super::raw::*;
+use super::tables::TableCache;
 use crate::potential::chain::ChainSpec;
 use crate::potential::Potential;
 use crate::units::{EnergyUnit, LengthUnit, Units};
 
-/// The checker: the source (for locations) and the input file's folder (for
-/// table files).
+/// The checker: the source (for locations), the input file's folder (for
+/// table files) and the tables already read.
 pub struct Checker<'a> {
     source: &'a SourceText,
     base_dir: &'a Path,
+    tables: &'a TableCache,
     units: Units,
 }
 
 type Result<T> = std::result::Result<T, InputError>;
 
 impl<'a> Checker<'a> {
-    /// A checker for `source`, resolving table files against `base_dir`.
-    pub fn new(source: &'a SourceText, base_dir: &'a Path) -> Self {
+    /// A checker for `source`, resolving table files against `base_dir` and
+    /// reading them through `tables` (each file once).
+    pub fn new(source: &'a SourceText, base_dir: &'a Path, tables: &'a TableCache) -> Self {
         Self {
             source,
             base_dir,
+            tables,
             units: Units::default(),
         }
     }
@@ -138,6 +141,7 @@ impl<'a> Checker<'a> {
             term_locations.push((key, self.loc(t.get_ref().shape.span())));
         }
         let grid = self.check_grid(raw.grid.as_ref(), &domain)?;
+        self.check_grid_fits(&grid, &domain, &raw)?;
         let electrons_default = chain.as_ref().map(ChainSpec::atoms);
         let levels = self.check_levels(raw.levels.as_ref(), electrons_default)?;
         let spectrum = self.check_spectrum(raw.spectrum.as_ref())?;
@@ -220,5 +224,17 @@ impl<'a> Checker<'a> {
             })?;
         }
         Ok(units)
+    }
+}
+
+/// A number for a message: plain decimals for everyday sizes, the exponent
+/// form for very small or very large ones (`6e-300`, not three hundred
+/// zeros).
+fn number(x: f64) -> String {
+    let a = x.abs();
+    if a == 0.0 || (1e-4..1e9).contains(&a) {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
     }
 }

@@ -1,5 +1,7 @@
 //! Checking `[[term]]` entries: which keys each shape takes, their ranges
-//! and units, and formula terms.
+//! and units; formula terms; table terms, whose CSV file is read through
+//! the document's [`TableCache`](crate::input::tables::TableCache) and
+//! located at the file's own line and column when it is at fault.
 
 use std::collections::BTreeMap;
 use std::ops::Range;
@@ -8,8 +10,10 @@ use std::sync::Arc;
 use toml::Spanned;
 
 use super::{Checker, Result};
+use crate::input::error::InputError;
 use crate::input::raw::{Num, RawTerm, Text};
 use crate::potential::formula::{Formula, FormulaErrorKind};
+use crate::potential::table::{Interpolation, Outside};
 use crate::potential::Term;
 
 impl Checker<'_> {
@@ -138,6 +142,58 @@ impl Checker<'_> {
             "table" => self.check_table(raw, key)?,
             "formula" => self.check_formula(raw, key)?,
             _ => unreachable!("shape was matched above"),
+        })
+    }
+
+    pub(super) fn check_table(&self, raw: &RawTerm, key: &str) -> Result<Term> {
+        let file = raw.file.as_ref().ok_or_else(|| {
+            self.err(
+                raw.shape.span(),
+                &format!("{key}.file"),
+                "a `table` term needs `file`",
+            )
+        })?;
+        let interpolation = match &raw.interpolation {
+            None => Interpolation::Linear,
+            Some(i) => match i.get_ref().as_str() {
+                "linear" => Interpolation::Linear,
+                "cubic" => Interpolation::Cubic,
+                other => {
+                    return Err(self.err(
+                        i.span(),
+                        &format!("{key}.interpolation"),
+                        format!("unknown interpolation `{other}`; use \"linear\" or \"cubic\""),
+                    ))
+                }
+            },
+        };
+        let outside = match &raw.outside {
+            None => Outside::Value(0.0),
+            Some(o) => match o.get_ref() {
+                toml::Value::String(s) if s == "hold" => Outside::Hold,
+                toml::Value::Float(x) if x.is_finite() => Outside::Value(*x),
+                toml::Value::Integer(n) => Outside::Value(*n as f64),
+                _ => {
+                    return Err(self.err(
+                        o.span(),
+                        &format!("{key}.outside"),
+                        "must be a number (the value outside the table) or \"hold\" (keep the end values)",
+                    ))
+                }
+            },
+        };
+        let path = self.base_dir.join(file.get_ref());
+        let table = self
+            .tables
+            .get(&path, interpolation, outside)
+            .map_err(|fault| {
+                let location = fault.at.unwrap_or_else(|| self.loc(file.span()));
+                InputError::new(location, format!("{key}.file"), fault.message)
+            })?;
+        Ok(Term::Table {
+            table,
+            length_unit: self.units.length.in_angstrom(),
+            energy_unit: self.units.energy.in_ev(),
         })
     }
 
