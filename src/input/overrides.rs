@@ -99,9 +99,9 @@ pub fn lookup<'t, 'a>(root: &'t mut DeTable<'a>, key: &str) -> Option<&'t DeValu
 /// Follows the dotted key `parts` from `root` down to the table that holds
 /// its last part; returns that table and the index of the part it holds
 /// (`parts.len()` when the key ends on a list entry, which names a table,
-/// not a value). A number after a list's name picks its entry, counted from
-/// 1. With `create`, missing tables on the path are created with that span;
-/// without it, a missing table is an error. Errors name the part of the
+/// not a value). A number after a list's name picks its entry, counted
+/// from one. With `create`, missing tables on the path are created with
+/// that span; without it, a missing table is an error. Errors name the part of the
 /// path that cannot be followed.
 fn walk<'t, 'a>(
     root: &'t mut DeTable<'a>,

@@ -88,3 +88,51 @@ impl Checker<'_> {
         })
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use approx::assert_relative_eq;
+
+    use crate::input::model::{Model, DEFAULT_BOND_LENGTH, DEFAULT_SITE_WIDTH};
+
+    fn model(text: &str) -> Model {
+        crate::input::load_str("t.toml", text.into(), Path::new("."), &[])
+            .unwrap_or_else(|e| panic!("{}", e.render()))
+            .0
+    }
+
+    #[test]
+    fn an_ideal_chain_is_the_box_of_its_bonds_and_end_extensions() {
+        // The free-electron box of a polyene: L = bonds * bond length + 2 *
+        // end extension, the box reaching one bond length beyond each
+        // terminal atom by default (the convention of H. Kuhn, J. Chem.
+        // Phys. 17, 1198 (1949); from memory).
+        let m = model("[chain]\nbonds = 7\n");
+        let c = m.chain.as_ref().unwrap();
+        assert_eq!(c.bond_length, DEFAULT_BOND_LENGTH);
+        assert_eq!(c.end_extension, DEFAULT_BOND_LENGTH);
+        assert_relative_eq!(
+            m.domain.length(),
+            9.0 * DEFAULT_BOND_LENGTH,
+            max_relative = 1e-15
+        );
+        assert_eq!(m.levels.electrons, Some(8));
+        assert!(!m.levels.electrons_given);
+    }
+
+    #[test]
+    fn chain_lengths_are_converted_from_the_input_units() {
+        // 1 nm = 10 angstrom (SI definitions of the units).
+        let m = model(
+            "[units]\nlength = \"nm\"\n[chain]\nbonds = 4\nbond_length = 0.14\nend_extension = 0.07\n[[chain.site]]\natom = 5\nheight = -1.0\n",
+        );
+        let c = m.chain.as_ref().unwrap();
+        assert_relative_eq!(c.bond_length, 1.4, max_relative = 1e-15);
+        assert_relative_eq!(c.end_extension, 0.7, max_relative = 1e-15);
+        assert_relative_eq!(m.domain.length(), 4.0 * 1.4 + 1.4, max_relative = 1e-15);
+        // A site's width defaults to DEFAULT_SITE_WIDTH, in angstrom.
+        assert_eq!(c.sites[0].width, DEFAULT_SITE_WIDTH);
+    }
+}
