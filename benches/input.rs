@@ -53,6 +53,9 @@ fn models(c: &mut Criterion) {
         });
     }
     group.finish();
+    let _ = std::fs::remove_dir_all(
+        std::env::temp_dir().join(format!("chainwell-bench-input-{}", std::process::id())),
+    );
 }
 
 criterion_group!(benches, models);
