@@ -30,6 +30,11 @@ struct Case {
     /// The key the message must name (in backquotes); empty for TOML syntax
     /// errors, which belong to no key.
     key: &'static str,
+    /// Words the message must contain; empty for no check.
+    says: &'static str,
+    /// The subcommand and its flags after the input; `{dir}` stands for the
+    /// case's folder. Empty: `solve --json`.
+    command: &'static [&'static str],
 }
 
 const fn case(name: &'static str, toml: &'static str, at: &'static str, key: &'static str) -> Case {
@@ -40,7 +45,19 @@ const fn case(name: &'static str, toml: &'static str, at: &'static str, key: &'s
         sets: &[],
         at,
         key,
+        says: "",
+        command: &[],
     }
+}
+
+const fn saying(mut c: Case, says: &'static str) -> Case {
+    c.says = says;
+    c
+}
+
+const fn with_command(mut c: Case, command: &'static [&'static str]) -> Case {
+    c.command = command;
+    c
 }
 
 const fn with_csv(mut c: Case, file: &'static str, bytes: &'static [u8]) -> Case {
@@ -159,6 +176,8 @@ const CASES: &[Case] = &[
         sets: &[],
         at: "in.toml:3:7",
         key: "",
+        says: "",
+        command: &[],
     },
     // --- levels and electrons against the grid ---
     case("count_larger_than_grid", concat!(domain!(), "[levels]\ncount = 41\n"), "in.toml:7:9", "levels.count"),
@@ -186,6 +205,45 @@ const CASES: &[Case] = &[
     with_sets(case("set_list_without_index", concat!(domain!(), "[[term]]\nshape = \"step\"\nfrom = 0.0\nto = 1.0\nheight = 1.0\n"), "--set term.height=3", "term.height"), &["term.height=3"]),
     with_sets(case("set_nan", domain!(), "--set domain.to=nan", "domain.to"), &["domain.to=nan"]),
     with_sets(case("set_value_into_a_value", domain!(), "--set domain.to.x=1", "domain.to.x"), &["domain.to.x=1"]),
+    // Regression: a fault inside an inline table given by --set was located
+    // at line 1 of the file.
+    with_sets(case("set_inline_table_fault", domain!(), "--set grid={points=-3}", "grid.points"), &["grid={points=-3}"]),
+    with_sets(saying(case("set_inline_table_unknown_key", domain!(), "--set grid={pointz=3}", "grid"), "unknown field `pointz`"), &["grid={pointz=3}"]),
+    with_sets(saying(case("set_list_for_a_table", domain!(), "--set domain=[0.0, 1.0]", "domain"), "expected a table"), &["domain=[0.0, 1.0]"]),
+    // --- messages in the input file's words ---
+    // Regression: a dotted key nested past the reader's limit gave
+    // "recursion limit" with no line.
+    saying(case("deep_dotted_table_header", concat!(domain!(), "[a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a]\nx = 1\n"), "in.toml:6:2", ""), "nested too deeply"),
+    saying(case("deep_dotted_key", concat!(domain!(), "a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a.a = 1\n"), "in.toml:6:1", ""), "nested too deeply"),
+    // Regression: "expected i64" and "expected f64".
+    saying(case("float_for_a_whole_number", concat!(domain!(), "[levels]\nfirst = 2.5\n"), "in.toml:7:9", "levels.first"), "expected a whole number"),
+    saying(case("string_for_a_number", "[domain]\nfrom = \"zero\"\nto = 10.0\n", "in.toml:2:8", "domain.from"), "expected a number"),
+    saying(case("whole_number_beyond_i64", "[chain]\nbonds = 99999999999999999999\n", "in.toml:2:9", "chain.bonds"), "too large"),
+    saying(case("number_for_a_table", "domain = 3\n", "in.toml:1:10", "domain"), "expected a table"),
+    // Regression: serde's list form of a struct was taken for the table.
+    saying(case("list_for_the_domain_table", "domain = [0.0, 12.0, \"walls\"]\n", "in.toml:1:10", "domain"), "expected a table"),
+    saying(case("list_for_the_grid_table", "grid = [40]\n[domain]\nfrom = 0.0\nto = 10.0\n", "in.toml:1:8", "grid"), "expected a table"),
+    saying(case("list_for_a_term", concat!("term = [[\"step\", 0.0, 1.0, 1.0]]\n", domain!()), "in.toml:1:9", "term"), "expected a table"),
+    saying(case("list_for_a_chain_site", "[chain]\nbonds = 4\nsite = [[2, -1.0]]\n", "in.toml:3:9", "chain.site"), "expected a table"),
+    // Regression: a table file that cannot be read was reported at line 0.
+    with_command(case("data_file_not_there", "[chain]\nbonds = 4\n[grid]\npoints = 40\n", "missing.csv", ""), &["fit", "--data", "{dir}/missing.csv", "--free", "chain.bond_length"]),
+    // Regression: control characters from the input reached the terminal.
+    Case {
+        name: "raw_escape_in_a_title",
+        toml: b"title = \"red\x1b[31m\"\n[domain]\nfrom = 0.0\nto = 10.0\n",
+        csv: None,
+        sets: &[],
+        at: "in.toml:1:13",
+        key: "title",
+        says: "\\u{1b}",
+        command: &[],
+    },
+    saying(case("escaped_control_in_a_shape", concat!(domain!(), "[[term]]\nshape = \"\\u001b[2J\\u0007\"\n"), "in.toml:7:9", "term[1].shape"), "\\u{1b}[2J\\u{7}"),
+    // Regression: a box too short for the default spacing blamed
+    // grid.points, a key not in the file.
+    saying(case("bond_length_too_short_for_the_default_grid", "[chain]\nbonds = 4\nbond_length = 1e-300\n", "in.toml:3:15", "chain.bond_length"), "6e-300"),
+    case("domain_too_short_for_the_default_grid", "[domain]\nfrom = 0.0\nto = 0.03\n", "in.toml:3:6", "domain.to"),
+    case("spacing_too_coarse_for_the_stencil", "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\nspacing = 3.0\n", "in.toml:5:11", "grid.spacing"),
 ];
 
 /// Every file in `dir` (one level; the cases make no sub-folders) with its
@@ -212,7 +270,18 @@ fn run(case: &Case, root: &Path) -> Option<String> {
     }
     let before = snapshot(&dir);
     let mut cmd = Command::new(bin());
-    cmd.current_dir(&dir).arg("solve").arg(&input).arg("--json");
+    cmd.current_dir(&dir);
+    match case.command.split_first() {
+        None => {
+            cmd.arg("solve").arg(&input).arg("--json");
+        }
+        Some((sub, flags)) => {
+            cmd.arg(sub).arg(&input);
+            for f in flags {
+                cmd.arg(f.replace("{dir}", &dir.display().to_string()));
+            }
+        }
+    }
     for s in case.sets {
         cmd.args(["--set", s]);
     }
@@ -232,6 +301,29 @@ fn run(case: &Case, root: &Path) -> Option<String> {
     }
     if !case.key.is_empty() && !err.contains(&format!("`{}`", case.key)) {
         faults.push(format!("message does not name `{}`", case.key));
+    }
+    if !case.says.is_empty() && !err.contains(case.says) {
+        faults.push(format!("message does not say `{}`", case.says));
+    }
+    // Rust's names for types are not the input's words.
+    let words = err.replace(&dir.display().to_string(), "DIR");
+    for word in [
+        "i64",
+        "f64",
+        "i128",
+        "struct Raw",
+        "sequence",
+        "recursion limit",
+    ] {
+        if words.contains(word) {
+            faults.push(format!("message says `{word}`"));
+        }
+    }
+    if err
+        .chars()
+        .any(|c| c.is_control() && c != '\n' && c != '\t')
+    {
+        faults.push("message holds control characters".into());
     }
     if err.contains("panicked") {
         faults.push("panicked".into());
@@ -322,5 +414,44 @@ fn a_domain_too_short_to_compute_on_is_refused() {
         "{err}"
     );
     assert!(out.stdout.is_empty());
+    std::fs::remove_dir_all(&root).unwrap();
+}
+
+/// Control characters in a title (written with TOML escapes, so the input
+/// is valid) are shown escaped in the readable table, not sent to the
+/// terminal, where ESC sequences would recolour or clear the screen.
+#[test]
+fn a_title_with_control_characters_is_escaped_on_the_terminal() {
+    let root = std::env::temp_dir().join(format!("chainwell-title-{}", std::process::id()));
+    std::fs::create_dir_all(&root).unwrap();
+    let input = root.join("in.toml");
+    std::fs::write(
+        &input,
+        "title = \"red\\u001b[31m, bell\\u0007, clear\\u001b[2J\"\n[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 40\n[levels]\ncount = 2\n",
+    )
+    .unwrap();
+    let out = Command::new(bin())
+        .current_dir(&root)
+        .args(["solve", "--no-estimate"])
+        .arg(&input)
+        .output()
+        .unwrap();
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        !stdout
+            .chars()
+            .any(|c| c.is_control() && c != '\n' && c != '\t'),
+        "{stdout:?}"
+    );
+    assert!(
+        stdout.starts_with("red\\u{1b}[31m, bell\\u{7}, clear\\u{1b}[2J\n"),
+        "{stdout}"
+    );
     std::fs::remove_dir_all(&root).unwrap();
 }

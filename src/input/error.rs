@@ -27,12 +27,40 @@ pub struct Location {
 
 impl fmt::Display for Location {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let file = escape_control(&self.file);
         if self.line == 0 {
-            write!(f, "{}", self.file)
+            write!(f, "{file}")
         } else {
-            write!(f, "{}:{}:{}", self.file, self.line, self.column)
+            write!(f, "{file}:{}:{}", self.line, self.column)
         }
     }
+}
+
+/// `text` with every control character but the tab (ESC, BEL, NUL, carriage
+/// return, newline, ...) written as a visible escape: `\n`, `\r`, and
+/// `\u{1b}` for the others. Text from an input (a title, a key, a quoted
+/// line, a file name) goes through this before it reaches a terminal, so
+/// that it cannot move the cursor, recolour the screen or hide the message.
+pub fn escape_control(text: &str) -> std::borrow::Cow<'_, str> {
+    if !text.chars().any(is_escaped) {
+        return std::borrow::Cow::Borrowed(text);
+    }
+    let mut out = String::with_capacity(text.len() + 8);
+    for c in text.chars() {
+        match c {
+            '\n' => out.push_str("\\n"),
+            '\r' => out.push_str("\\r"),
+            c if is_escaped(c) => out.push_str(&format!("\\u{{{:x}}}", c as u32)),
+            c => out.push(c),
+        }
+    }
+    std::borrow::Cow::Owned(out)
+}
+
+/// Control characters that [`escape_control`] rewrites: all but the tab,
+/// which only moves to the next column and is common as indentation.
+fn is_escaped(c: char) -> bool {
+    c.is_control() && c != '\t'
 }
 
 /// An input file's text, its name, and the overrides applied to it: what is
@@ -95,9 +123,10 @@ fn floor_char_boundary(s: &str, mut i: usize) -> usize {
     i
 }
 
-/// A fault in the input: where, which key, what.
+/// A fault in the input: where, which key, what. Displayed with control
+/// characters escaped ([`escape_control`]).
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
-#[error("{location}: {}{message}", key_prefix(.key))]
+#[error("{location}: {}{}", key_prefix(.key), escape_control(.message))]
 pub struct InputError {
     /// Where the fault is.
     pub location: Location,
@@ -112,7 +141,7 @@ fn key_prefix(key: &str) -> String {
     if key.is_empty() {
         String::new()
     } else {
-        format!("`{key}`: ")
+        format!("`{}`: ", escape_control(key))
     }
 }
 
@@ -130,10 +159,20 @@ impl InputError {
     /// offending line with a caret under the column.
     pub fn render(&self) -> String {
         let mut out = format!("error: {self}");
-        if let Some(text) = &self.location.line_text {
+        if let Some(raw) = &self.location.line_text {
             let num = self.location.line.to_string();
             let pad = " ".repeat(num.len());
-            let caret_pad = " ".repeat(self.location.column.saturating_sub(1));
+            // The caret goes under the column's character as displayed:
+            // escapes widen what comes before it.
+            let before: String = raw
+                .chars()
+                .take(self.location.column.saturating_sub(1))
+                .collect();
+            let caret_pad: String = escape_control(&before)
+                .chars()
+                .map(|c| if c == '\t' { '\t' } else { ' ' })
+                .collect();
+            let text = escape_control(raw);
             out.push_str(&format!(
                 "\n {pad} |\n {num} | {text}\n {pad} | {caret_pad}^"
             ));
@@ -157,6 +196,31 @@ mod tests {
         // 'é' is two bytes but one column.
         assert_eq!((loc.line, loc.column), (2, 6));
         assert_eq!(loc.line_text.as_deref(), Some("bé = 2"));
+    }
+
+    #[test]
+    fn control_characters_are_escaped_in_messages() {
+        assert_eq!(escape_control("plain é"), "plain é");
+        assert_eq!(
+            escape_control("a\u{1b}[31mb\u{7}\t\n\r\0"),
+            "a\\u{1b}[31mb\\u{7}\t\\n\\r\\u{0}"
+        );
+        let src = SourceText {
+            name: "in\u{1b}.toml".into(),
+            text: "title = 3\u{1b}x\n".into(),
+            overrides: vec![],
+        };
+        let e = InputError::new(src.locate(Some(10..11)), "ti\u{7}tle", "bad \u{1b}[2J");
+        let r = e.render();
+        assert!(!r.chars().any(|c| is_escaped(c) && c != '\n'), "{r:?}");
+        assert!(
+            r.starts_with("error: in\\u{1b}.toml:1:11: `ti\\u{7}tle`: bad \\u{1b}[2J"),
+            "{r}"
+        );
+        // The caret stands under the `x`, after the widened escape.
+        let lines: Vec<&str> = r.lines().collect();
+        let quoted = lines[2].find('x').unwrap();
+        assert_eq!(lines[3].find('^'), Some(quoted), "{r}");
     }
 
     #[test]

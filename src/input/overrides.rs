@@ -12,6 +12,7 @@
 //! the three the file gives.
 
 use std::borrow::Cow;
+use std::ops::Range;
 
 use toml::de::{DeTable, DeValue};
 use toml::Spanned;
@@ -66,6 +67,47 @@ pub fn apply<'a>(
     let span = marker..marker + 1;
     set_spans(&mut value, &span);
     let parts: Vec<&str> = ov.key.split('.').collect();
+    let (table, i) = walk(root, &parts, Some(&span))?;
+    if i >= parts.len() {
+        return Err(format!("`{}` names a table entry, not a value", ov.key));
+    }
+    // The grid's resolution is one of three keys: overriding one replaces
+    // whichever the file gives, as `--set grid.points=N` is meant to.
+    if i == 1 && parts[0] == "grid" && RESOLUTION_KEYS.contains(&parts[1]) {
+        for other in RESOLUTION_KEYS.iter().filter(|k| **k != parts[1]) {
+            table.remove(*other);
+        }
+    }
+    table.insert(
+        Spanned::new(span.clone(), Cow::Owned(parts[i].to_string())),
+        Spanned::new(span, value),
+    );
+    Ok(())
+}
+
+/// The value a dotted key names in the tree (lists counted from 1, as in
+/// [`apply`]), or `None` when the tree has no such value.
+pub fn lookup<'t, 'a>(root: &'t mut DeTable<'a>, key: &str) -> Option<&'t DeValue<'a>> {
+    let parts: Vec<&str> = key.split('.').collect();
+    let (table, i) = walk(root, &parts, None).ok()?;
+    parts
+        .get(i)
+        .and_then(|name| table.get(*name))
+        .map(Spanned::get_ref)
+}
+
+/// Follows the dotted key `parts` from `root` down to the table that holds
+/// its last part; returns that table and the index of the part it holds
+/// (`parts.len()` when the key ends on a list entry, which names a table,
+/// not a value). A number after a list's name picks its entry, counted
+/// from one. With `create`, missing tables on the path are created with
+/// that span; without it, a missing table is an error. Errors name the part of the
+/// path that cannot be followed.
+fn walk<'t, 'a>(
+    root: &'t mut DeTable<'a>,
+    parts: &[&str],
+    create: Option<&Range<usize>>,
+) -> Result<(&'t mut DeTable<'a>, usize), String> {
     let mut table = root;
     let mut i = 0;
     while i + 1 < parts.len() {
@@ -78,6 +120,9 @@ pub fn apply<'a>(
                     parts[..=i].join(".")
                 ));
             }
+            let Some(span) = create else {
+                return Err(format!("`{}` is not in the input", parts[..=i].join(".")));
+            };
             table.insert(
                 Spanned::new(span.clone(), Cow::Owned(name.to_string())),
                 Spanned::new(span.clone(), DeValue::Table(DeTable::new())),
@@ -126,21 +171,7 @@ pub fn apply<'a>(
             }
         }
     }
-    if i >= parts.len() {
-        return Err(format!("`{}` names a table entry, not a value", ov.key));
-    }
-    // The grid's resolution is one of three keys: overriding one replaces
-    // whichever the file gives, as `--set grid.points=N` is meant to.
-    if i == 1 && parts[0] == "grid" && RESOLUTION_KEYS.contains(&parts[1]) {
-        for other in RESOLUTION_KEYS.iter().filter(|k| **k != parts[1]) {
-            table.remove(*other);
-        }
-    }
-    table.insert(
-        Spanned::new(span.clone(), Cow::Owned(parts[i].to_string())),
-        Spanned::new(span, value),
-    );
-    Ok(())
+    Ok((table, i))
 }
 
 /// Reads an override's value text as a TOML value, or as a bare string when
@@ -152,7 +183,10 @@ pub fn parse_value(text: &str) -> DeValue<'_> {
     }
 }
 
-fn set_spans(v: &mut DeValue<'_>, span: &std::ops::Range<usize>) {
+/// Gives every part of an override's value the override's span marker, so
+/// that a fault anywhere inside it (an entry of an inline table, an item of
+/// a list) is located at the `--set` that wrote it, not in the file.
+fn set_spans(v: &mut DeValue<'_>, span: &Range<usize>) {
     match v {
         DeValue::Array(items) => {
             for item in items.iter_mut() {
@@ -162,8 +196,14 @@ fn set_spans(v: &mut DeValue<'_>, span: &std::ops::Range<usize>) {
             }
         }
         DeValue::Table(t) => {
-            for (_, item) in t.iter_mut() {
-                set_spans(item.get_mut(), span);
+            let entries = std::mem::take(t);
+            for (key, item) in entries {
+                let mut inner = item.into_inner();
+                set_spans(&mut inner, span);
+                t.insert(
+                    Spanned::new(span.clone(), key.into_inner()),
+                    Spanned::new(span.clone(), inner),
+                );
             }
         }
         _ => {}

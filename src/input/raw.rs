@@ -5,9 +5,16 @@
 //! Nothing here interprets a value; unknown keys are refused by serde
 //! (`deny_unknown_fields`). A `Spanned` field inside a serde-tagged enum does
 //! not deserialise, so a term is one flat struct whose `shape` is checked later.
+//! Every section must be a TOML table: serde's derived structs would also
+//! take a list of their fields in order (`domain = [0.0, 12.0, "walls"]`),
+//! which [`TableOnly`] refuses.
 
 use std::collections::BTreeMap;
+use std::fmt;
+use std::marker::PhantomData;
 
+use serde::de::value::MapAccessDeserializer;
+use serde::de::{Deserializer, MapAccess, Visitor};
 use serde::Deserialize;
 use toml::Spanned;
 
@@ -25,20 +32,28 @@ pub struct RawInput {
     /// Free text.
     pub title: Option<Text>,
     /// Units of the input (and output).
+    #[serde(default, deserialize_with = "table")]
     pub units: Option<Spanned<RawUnits>>,
     /// The particle.
+    #[serde(default, deserialize_with = "table")]
     pub particle: Option<Spanned<RawParticle>>,
     /// The domain.
+    #[serde(default, deserialize_with = "table")]
     pub domain: Option<Spanned<RawDomain>>,
     /// The grid.
+    #[serde(default, deserialize_with = "table")]
     pub grid: Option<Spanned<RawGrid>>,
     /// Which levels to compute.
+    #[serde(default, deserialize_with = "table")]
     pub levels: Option<Spanned<RawLevels>>,
     /// Potential terms.
+    #[serde(default, deserialize_with = "tables")]
     pub term: Option<Vec<Spanned<RawTerm>>>,
     /// A conjugated chain.
+    #[serde(default, deserialize_with = "table")]
     pub chain: Option<Spanned<RawChain>>,
     /// Absorption-spectrum options.
+    #[serde(default, deserialize_with = "table")]
     pub spectrum: Option<Spanned<RawSpectrum>>,
 }
 
@@ -142,6 +157,7 @@ pub struct RawChain {
     pub alternation: Option<Num>,
     pub end_cap_height: Option<Num>,
     pub end_cap_width: Option<Num>,
+    #[serde(default, deserialize_with = "tables")]
     pub site: Option<Vec<Spanned<RawSite>>>,
 }
 
@@ -163,4 +179,54 @@ pub struct RawSpectrum {
     pub shape: Option<Text>,
     pub width: Option<Num>,
     pub all_pairs: Option<Spanned<bool>>,
+}
+
+/// A value that must be written as a TOML table. serde's derived structs
+/// also accept a list of their fields in order; this wrapper takes a table
+/// only, and says "expected a table" for anything else.
+pub struct TableOnly<T>(pub T);
+
+impl<'de, T: Deserialize<'de>> Deserialize<'de> for TableOnly<T> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct Only<T>(PhantomData<T>);
+        impl<'de, T: Deserialize<'de>> Visitor<'de> for Only<T> {
+            type Value = TableOnly<T>;
+            fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                f.write_str("a table")
+            }
+            fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<Self::Value, A::Error> {
+                T::deserialize(MapAccessDeserializer::new(map)).map(TableOnly)
+            }
+        }
+        d.deserialize_map(Only(PhantomData))
+    }
+}
+
+/// A section that must be a table, with its span.
+fn table<'de, D, T>(d: D) -> Result<Option<Spanned<T>>, D::Error>
+where
+    D: Deserializer<'de>,
+    T: Deserialize<'de>,
+{
+    let s = Spanned::<TableOnly<T>>::deserialize(d)?;
+    let span = s.span();
+    Ok(Some(Spanned::new(span, s.into_inner().0)))
+}
+
+/// A list of sections (`[[term]]`), each a table, with their spans.
+fn tables<'de, D, T>(d: D) -> Result<Option<Vec<Spanned<T>>>, D::Error>
+where
+    D: Deserializer<'de>,
+    T: Deserialize<'de>,
+{
+    let items = Vec::<Spanned<TableOnly<T>>>::deserialize(d)?;
+    Ok(Some(
+        items
+            .into_iter()
+            .map(|s| {
+                let span = s.span();
+                Spanned::new(span, s.into_inner().0)
+            })
+            .collect(),
+    ))
 }

@@ -30,7 +30,7 @@ use super::grid_for;
 use crate::bands::CellProblem;
 use crate::grid::{second_derivative_weights, Grid};
 use crate::grid::{Boundary, Domain, Scheme};
-use crate::input::check::DEFAULT_SPACING_ANGSTROM;
+use crate::input::model::DEFAULT_SPACING_ANGSTROM;
 use crate::input::model::{Model, Resolution};
 use crate::potential::chain::ChainSpec;
 use crate::potential::{chain, NonFinite, Potential};

@@ -11,7 +11,7 @@ pub fn wanted_steps(model: &Model) -> usize {
         Resolution::Points(n) => Grid::with_points(&model.domain, n).steps(),
         Resolution::Spacing(h) => Grid::with_spacing(&model.domain, h).steps(),
         Resolution::Tolerance(_) => {
-            Grid::with_spacing(&model.domain, crate::input::check::DEFAULT_SPACING_ANGSTROM).steps()
+            Grid::with_spacing(&model.domain, crate::input::model::DEFAULT_SPACING_ANGSTROM).steps()
         }
     }
 }

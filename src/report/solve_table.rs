@@ -12,7 +12,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
     let l = u.length.label();
     let mut s = String::new();
     if let Some(t) = &model.title {
-        let _ = writeln!(s, "{t}");
+        let _ = writeln!(s, "{}", crate::input::escape_control(t));
     }
     let _ = writeln!(
         s,

@@ -35,7 +35,7 @@ pub const DEFAULT_KPOINTS: usize = 41;
 
 /// Bands computed when `levels.count` is not written in the input (a chain's
 /// default level count is meant for its finite box, not for the cell).
-pub const DEFAULT_BANDS: usize = crate::input::check::DEFAULT_COUNT;
+pub const DEFAULT_BANDS: usize = crate::input::model::DEFAULT_COUNT;
 
 /// Most finite chains one `--finite` may ask for.
 pub const MAX_FINITE_CHAINS: usize = 200;

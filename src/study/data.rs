@@ -38,7 +38,7 @@ pub struct Data {
 
 /// A fault in a data file, with its line.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
-#[error("error: {file}:{line}: {message}")]
+#[error("error: {file}{}: {message}", line_suffix(*.line))]
 pub struct DataError {
     /// The file.
     pub file: String,
@@ -46,6 +46,15 @@ pub struct DataError {
     pub line: usize,
     /// What is wrong.
     pub message: String,
+}
+
+/// `:LINE` for a fault on a line; nothing for the file as a whole (line 0).
+fn line_suffix(line: usize) -> String {
+    if line == 0 {
+        String::new()
+    } else {
+        format!(":{line}")
+    }
 }
 
 impl Data {
