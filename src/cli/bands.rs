@@ -2,6 +2,7 @@
 
 use std::path::PathBuf;
 
+use chainwell::input::Document;
 use chainwell::report;
 use chainwell::study::bands::{self, BandsSpec, DEFAULT_KPOINTS};
 
@@ -41,6 +42,7 @@ pub struct BandsArgs {
 pub fn run(args: BandsArgs) -> Result<Outcome, CommandError> {
     let overrides = parse_overrides(&args.set)?;
     let figure = args.plot.check(&["bands"])?;
+    bands::check_kpoints(args.kpoints)?;
     let finite = args
         .finite
         .as_deref()
@@ -51,7 +53,8 @@ pub fn run(args: BandsArgs) -> Result<Outcome, CommandError> {
         kpoints: args.kpoints,
         finite,
     };
-    let (model, source, result) = bands::compute(&args.input, &overrides, &spec)?;
+    let document = Document::open(&args.input)?;
+    let (model, source, result) = bands::compute(&document, &overrides, &spec)?;
     if let Some(csv_path) = &args.csv {
         chainwell::output::write_atomic(
             csv_path,

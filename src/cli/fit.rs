@@ -1,9 +1,9 @@
 //! `chainwell fit`: fitted input values from a measured series, or (with
 //! `--target`) the value of one key that gives a wanted quantity.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
-use chainwell::input::{self, Override};
+use chainwell::input::{Document, Override};
 use chainwell::report;
 use chainwell::study::checkpoint::{self, Saver};
 use chainwell::study::fit::{self, Data, FitError, FitProgress, FitSpec, Free};
@@ -49,68 +49,6 @@ pub struct FitArgs {
     pub plot: FigureArgs,
 }
 
-/// The current value of a dotted key in the input (after `--set`), in the
-/// input's units; chain keys left at their defaults are read from the
-/// checked chain. `None` when the input has no value for it.
-pub fn current_value(
-    path: &Path,
-    overrides: &[Override],
-    key: &str,
-) -> Result<Option<(f64, bool)>, CommandError> {
-    let number = |text: &str| -> Option<(f64, bool)> {
-        match text.parse::<toml::Value>().ok().or_else(|| {
-            format!("v = {text}")
-                .parse::<toml::Table>()
-                .ok()
-                .and_then(|t| t.get("v").cloned())
-        }) {
-            Some(toml::Value::Integer(i)) => Some((i as f64, true)),
-            Some(toml::Value::Float(x)) => Some((x, false)),
-            _ => None,
-        }
-    };
-    if let Some(ov) = overrides.iter().rev().find(|o| o.key == key) {
-        return Ok(number(&ov.value));
-    }
-    let (model, source) = input::load(path, overrides)?;
-    let table: toml::Table = source
-        .text
-        .parse()
-        .map_err(|e| CommandError::Usage(format!("{}: {e}", source.name)))?;
-    let mut at = toml::Value::Table(table);
-    let mut found = true;
-    for part in key.split('.') {
-        let next = match (&at, part.parse::<usize>()) {
-            (toml::Value::Array(a), Ok(i)) => i.checked_sub(1).and_then(|i| a.get(i)).cloned(),
-            (toml::Value::Table(t), _) => t.get(part).cloned(),
-            _ => None,
-        };
-        match next {
-            Some(v) => at = v,
-            None => {
-                found = false;
-                break;
-            }
-        }
-    }
-    if found {
-        return Ok(match at {
-            toml::Value::Integer(i) => Some((i as f64, true)),
-            toml::Value::Float(x) => Some((x, false)),
-            _ => None,
-        });
-    }
-    let u = &model.units;
-    Ok(model.chain.as_ref().and_then(|c| match key {
-        "chain.bond_length" => Some((u.length_out(c.bond_length), false)),
-        "chain.end_extension" => Some((u.length_out(c.end_extension), false)),
-        "chain.alternation" => Some((u.energy_out(c.alternation), false)),
-        "chain.end_cap_height" => Some((u.energy_out(c.end_cap_height), false)),
-        "chain.end_cap_width" => Some((u.length_out(c.end_cap_width), false)),
-        _ => None,
-    }))
-}
-
 /// A `--bounds` flag: key, lower and upper bound.
 type Bound = (String, Option<f64>, Option<f64>);
 
@@ -142,6 +80,7 @@ fn parse_bounds(flags: &[String]) -> Result<Vec<Bound>, CommandError> {
 
 fn frees(
     args: &FitArgs,
+    document: &Document,
     overrides: &[Override],
     resume: &[(String, f64)],
 ) -> Result<Vec<Free>, CommandError> {
@@ -172,7 +111,7 @@ fn frees(
                 "--free {key}: the key is named twice"
             )));
         }
-        let (start, integer) = match current_value(&args.input, overrides, key)? {
+        let (start, integer) = match fit::start_value(document, overrides, key)? {
             Some(v) => v,
             None => {
                 return Err(CommandError::Usage(format!(
@@ -248,10 +187,11 @@ fn resume_values(args: &FitArgs) -> Result<Vec<(String, f64)>, CommandError> {
 pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
     let overrides = parse_overrides(&args.set)?;
     let figure = args.plot.check(&["fit"])?;
-    let (base, source) = input::load(&args.input, &overrides)?;
+    let document = Document::open(&args.input)?;
+    let (base, source) = document.model(&overrides)?;
     let units = base.units.to_json();
     let resume = resume_values(&args)?;
-    let free = frees(&args, &overrides, &resume)?;
+    let free = frees(&args, &document, &overrides, &resume)?;
     let stop = checkpoint::interrupt_flag();
     let saver = args
         .save
@@ -297,7 +237,7 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
             )));
         };
         let spec = TargetSpec {
-            path: args.input.clone(),
+            document,
             overrides: overrides.clone(),
             key: f.key.clone(),
             bounds: (lo, hi),
@@ -340,7 +280,7 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
         "data": data.file, "free": free.iter().map(|f| json!({"key": f.key, "start": f.start, "lower": f.lower, "upper": f.upper})).collect::<Vec<_>>(),
     });
     let spec = FitSpec {
-        path: args.input.clone(),
+        document,
         overrides,
         data,
         free,

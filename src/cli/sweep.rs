@@ -4,6 +4,7 @@ use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
+use chainwell::input::Document;
 use chainwell::report;
 use chainwell::study::cases::{CaseError, CaseGrid, Shard, Vary};
 use chainwell::study::checkpoint::{self, Saver};
@@ -147,7 +148,7 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
         .transpose()
         .map_err(usage)?;
     let spec = SweepSpec {
-        path: args.input.clone(),
+        document: Document::open(&args.input)?,
         overrides,
         grid,
         shard,

@@ -184,9 +184,10 @@ pub fn cell_from_model(model: &Model) -> Result<Cell, NonFinite> {
     }
     let electrons_per_cell = match source {
         CellSource::Chain => Some(2),
+        // A domain has no chain, so its electrons are the ones written.
         CellSource::Domain => model
-            .key_locations
-            .contains_key("levels.electrons")
+            .levels
+            .electrons_given
             .then_some(model.levels.electrons)
             .flatten(),
     };

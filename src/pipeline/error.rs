@@ -155,7 +155,7 @@ impl SolveError {
             }
             SolveError::Occupancy(_) => at("levels.electrons", "levels", self.to_string()),
             SolveError::TooManyLevels { .. } => {
-                if model.key_locations.contains_key("levels.count") {
+                if model.levels.count_given {
                     at("levels.count", "levels", self.to_string())
                 } else {
                     at("grid.points", "grid", self.to_string())

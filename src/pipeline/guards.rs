@@ -3,7 +3,7 @@
 //! round-off floor they share.
 
 use crate::eigen::{self, Eigenpairs, Problem};
-use crate::grid::{Grid, Scheme};
+use crate::grid::Grid;
 use crate::input::Model;
 
 use super::discretise::Discretised;
@@ -42,11 +42,8 @@ pub fn residual_ratio(
 /// estimate ([`memory_estimate`]) is above [`MEMORY_LIMIT_BYTES`], before
 /// anything is allocated.
 pub fn check_size(model: &Model, grid: &Grid) -> Result<(), SolveError> {
-    let p = model.grid.order.half_width();
-    let needed = match model.grid.scheme {
-        Scheme::FiniteDifference => 2 * p + 1,
-        Scheme::Numerov => 5,
-    };
+    let p = model.grid.half_width();
+    let needed = model.grid.min_points();
     if grid.points < needed {
         return Err(SolveError::GridTooSmall {
             points: grid.points,

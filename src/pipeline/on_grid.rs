@@ -34,7 +34,7 @@ fn selection(model: &Model, points: usize) -> Result<Selection, SolveError> {
     Ok(match model.levels.below {
         Some(energy) => Selection::Below { energy },
         None => {
-            let last = model.levels.first + model.levels.count - 1;
+            let last = model.levels.last();
             if last > points {
                 return Err(SolveError::TooManyLevels {
                     first: model.levels.first,
@@ -42,10 +42,8 @@ fn selection(model: &Model, points: usize) -> Result<Selection, SolveError> {
                     points,
                 });
             }
-            Selection::Index {
-                first: model.levels.first - 1,
-                count: model.levels.count,
-            }
+            let (first, count) = model.levels.window();
+            Selection::Index { first, count }
         }
     })
 }

@@ -174,7 +174,7 @@ pub fn bands_table(model: &Model, r: &BandsResult) -> String {
     let kl = format!("1/{l}");
     let mut s = String::new();
     if let Some(t) = &model.title {
-        let _ = writeln!(s, "{t}");
+        let _ = writeln!(s, "{}", crate::input::escape_control(t));
     }
     let what = match r.cell.source {
         CellSource::Chain => "the chain's repeat unit (2 bonds)",

@@ -17,7 +17,6 @@
 //! J. Chem. Phys. 17, 1198 (1949)). For an explicit domain, `levels.electrons`
 //! (when written) is the count per cell.
 
-use std::path::Path;
 use std::time::Instant;
 
 use rayon::prelude::*;
@@ -26,7 +25,7 @@ use serde::Serialize;
 use crate::bands::{self, band_edges, band_structure, BandEdge, BandStructure, BandsError, Gap};
 use crate::eigen::EigenParams;
 use crate::grid::Grid;
-use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::input::{Document, InputError, Model, Override, SourceText};
 use crate::pipeline::cell::{cell_from_model, Cell};
 use crate::pipeline::{Fault, SolveError};
 
@@ -161,21 +160,27 @@ impl Default for BandsSpec {
     }
 }
 
-/// Loads the input at `path`, computes its bands and, when asked, the finite
-/// chains; returns the model, its source text and the result.
+/// Refuses fewer than two wavevectors (the grid counts `k = 0` and
+/// `k = pi / a`).
+pub fn check_kpoints(kpoints: usize) -> Result<(), Fault> {
+    if kpoints < 2 {
+        return Err(Fault::Usage(format!(
+            "--kpoints must be at least 2 (it counts k = 0 and k = pi/a), got {kpoints}"
+        )));
+    }
+    Ok(())
+}
+
+/// Checks the input with `overrides`, computes its bands and, when asked,
+/// the finite chains; returns the model, its source text and the result.
 pub fn compute(
-    path: &Path,
+    document: &Document,
     overrides: &[Override],
     spec: &BandsSpec,
 ) -> Result<(Model, SourceText, BandsResult), Fault> {
     let start = Instant::now();
-    if spec.kpoints < 2 {
-        return Err(Fault::Usage(format!(
-            "--kpoints must be at least 2 (it counts k = 0 and k = pi/a), got {}",
-            spec.kpoints
-        )));
-    }
-    let (model, source) = input::load(path, overrides).map_err(Fault::Input)?;
+    check_kpoints(spec.kpoints)?;
+    let (model, source) = document.model(overrides).map_err(Fault::Input)?;
     if spec.finite.is_some() && model.chain.is_none() {
         return Err(Fault::Usage(
             "--finite lays finite chains beside the bands and needs an input with a [chain]".into(),
@@ -184,14 +189,17 @@ pub fn compute(
     let cell = cell_from_model(&model)
         .map_err(|e| SolveError::NonFinitePotential(e).locate(&model, &source))?;
     let mut warnings = cell.warnings.clone();
-    for key in ["levels.first", "levels.below"] {
-        if model.key_locations.contains_key(key) {
+    for (key, given) in [
+        ("levels.first", model.levels.first_given),
+        ("levels.below", model.levels.below.is_some()),
+    ] {
+        if given {
             warnings.push(format!(
                 "{key} is not used by bands: the lowest levels.count bands are computed"
             ));
         }
     }
-    let nbands = if model.key_locations.contains_key("levels.count") {
+    let nbands = if model.levels.count_given {
         model.levels.count
     } else {
         DEFAULT_BANDS.min(cell.points())
@@ -215,7 +223,7 @@ pub fn compute(
         }
     }
     let finite = match &spec.finite {
-        Some(counts) => finite_chains(path, overrides, counts, cell.spacing(), &mut warnings)?,
+        Some(counts) => finite_chains(document, overrides, counts, cell.spacing(), &mut warnings)?,
         None => Vec::new(),
     };
     let result = BandsResult {
@@ -253,7 +261,7 @@ fn filling(electrons: usize, edges: &[(BandEdge, BandEdge)], gaps: &[Gap]) -> Fi
 
 /// Solves the finite chains of `counts` bonds at the cell's `spacing`.
 fn finite_chains(
-    path: &Path,
+    document: &Document,
     overrides: &[Override],
     counts: &[usize],
     spacing: f64,
@@ -261,7 +269,7 @@ fn finite_chains(
 ) -> Result<Vec<FiniteChain>, Fault> {
     let solved: Vec<(FiniteChain, Vec<String>)> = counts
         .par_iter()
-        .map(|&bonds| finite_chain(path, overrides, bonds, spacing))
+        .map(|&bonds| finite_chain(document, overrides, bonds, spacing))
         .collect::<Result<_, _>>()?;
     let mut rows = Vec::with_capacity(solved.len());
     for (row, notes) in solved {
@@ -273,10 +281,10 @@ fn finite_chains(
     Ok(rows)
 }
 
-/// One finite chain: the input re-loaded with `chain.bonds = bonds`, one pi
+/// One finite chain: the input checked again with `chain.bonds = bonds`, one pi
 /// electron per atom, and only the HOMO and LUMO asked for.
 fn finite_chain(
-    path: &Path,
+    document: &Document,
     base: &[Override],
     bonds: usize,
     spacing: f64,
@@ -295,7 +303,7 @@ fn finite_chain(
             value: value.to_string(),
         });
     }
-    let (model, source) = input::load(path, &overrides).map_err(Fault::Input)?;
+    let (model, source) = document.model(&overrides).map_err(Fault::Input)?;
     let grid = Grid::with_spacing(&model.domain, spacing);
     let sol = crate::pipeline::solve_on(&model, &grid, &EigenParams::default())
         .map_err(|e| e.locate(&model, &source))?;

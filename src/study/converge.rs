@@ -59,7 +59,7 @@ pub fn converge(
     for k in (1..grids).rev() {
         let steps = (finest.steps() as f64 / (1usize << k) as f64).round() as usize;
         let g = Grid::with_steps(&model.domain, steps);
-        if g.points < first + count + 2 * model.grid.order.half_width() + 2 {
+        if g.points < model.grid.points_for_levels(first + count) {
             continue;
         }
         let e = energies_on(model, &g, first, count, params)?;

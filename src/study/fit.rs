@@ -26,7 +26,6 @@
 //!   below `1e-8` of its largest, a combination of the free keys does not
 //!   change the model, and the fit fails naming the keys involved.
 
-use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
 
@@ -39,7 +38,7 @@ use super::cases::CaseValue;
 pub use super::data::{Data, DataError, DataRow};
 use super::quantity::{Quantity, QuantityError};
 use super::runner::Runner;
-use crate::input::{self, InputError, Override};
+use crate::input::{Document, InputError, Override};
 use crate::pipeline::{self, SolveError};
 
 /// The format name of fit documents.
@@ -68,16 +67,43 @@ pub enum EvalError {
 
 /// The quantity of the input at `path` with `overrides` and then `extra`.
 pub fn evaluate(
-    path: &Path,
+    document: &Document,
     overrides: &[Override],
     extra: &[Override],
     quantity: Quantity,
 ) -> Result<f64, EvalError> {
     let mut ovs = overrides.to_vec();
     ovs.extend_from_slice(extra);
-    let (model, _) = input::load(path, &ovs).map_err(EvalError::Input)?;
+    let (model, _) = document.model(&ovs).map_err(EvalError::Input)?;
     let sol = pipeline::solve(&model)?;
     Ok(quantity.of(&model, &sol)?)
+}
+
+/// The current value of the dotted key `key` once `overrides` are applied,
+/// in the input's units, and whether it is a whole number; chain keys left
+/// at their defaults are read from the checked chain. `None` when the input
+/// has no number there.
+pub fn start_value(
+    document: &Document,
+    overrides: &[Override],
+    key: &str,
+) -> Result<Option<(f64, bool)>, InputError> {
+    match document.value(key, overrides)? {
+        Some(toml::Value::Integer(i)) => return Ok(Some((i as f64, true))),
+        Some(toml::Value::Float(x)) => return Ok(Some((x, false))),
+        Some(_) => return Ok(None),
+        None => {}
+    }
+    let (model, _) = document.model(overrides)?;
+    let u = &model.units;
+    Ok(model.chain.as_ref().and_then(|c| match key {
+        "chain.bond_length" => Some((u.length_out(c.bond_length), false)),
+        "chain.end_extension" => Some((u.length_out(c.end_extension), false)),
+        "chain.alternation" => Some((u.energy_out(c.alternation), false)),
+        "chain.end_cap_height" => Some((u.energy_out(c.end_cap_height), false)),
+        "chain.end_cap_width" => Some((u.length_out(c.end_cap_width), false)),
+        _ => None,
+    }))
 }
 
 /// A free key: its start value and bounds.
@@ -116,10 +142,10 @@ impl Free {
 }
 
 /// Everything a fit needs.
-#[derive(Debug, Clone)]
+#[derive(Debug)]
 pub struct FitSpec {
-    /// The input file.
-    pub path: PathBuf,
+    /// The input, read once.
+    pub document: Document,
     /// `--set` overrides.
     pub overrides: Vec<Override>,
     /// The data.
@@ -279,7 +305,7 @@ pub fn model_values(
                 return Err(EvalError::Interrupted);
             }
             evaluate(
-                &spec.path,
+                &spec.document,
                 &spec.overrides,
                 &overrides_for(spec, p, row),
                 spec.data.quantity,

@@ -11,7 +11,7 @@
 //! A row carries the same `levels` and `occupancy` objects as
 //! `chainwell solve --json` ([`crate::pipeline::record`]).
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::sync::Mutex;
 
 use rayon::prelude::*;
@@ -19,7 +19,7 @@ use serde_json::{json, Value};
 
 use super::cases::{Case, CaseGrid, CaseValue, Shard};
 use super::runner::Runner;
-use crate::input::{self, InputError, Model, Override, SourceText};
+use crate::input::{Document, InputError, Model, Override, SourceText};
 use crate::pipeline::record::{level_records, occupancy_record, LevelRecord, OccupancyRecord};
 use crate::pipeline::{self, SolveError};
 
@@ -27,10 +27,10 @@ use crate::pipeline::{self, SolveError};
 pub const FORMAT: &str = "chainwell.sweep/1";
 
 /// What a sweep is: the input, its overrides, the cases and the shard.
-#[derive(Debug, Clone)]
+#[derive(Debug)]
 pub struct SweepSpec {
-    /// The input file.
-    pub path: PathBuf,
+    /// The input, read once.
+    pub document: Document,
     /// `--set` overrides, applied before each case's own.
     pub overrides: Vec<Override>,
     /// The grid of cases.
@@ -165,12 +165,17 @@ pub fn vary_error(mut e: InputError, spec: &SweepSpec, case: &Case) -> InputErro
 pub fn load_case(spec: &SweepSpec, case: &Case) -> Result<(Model, SourceText), InputError> {
     let mut ovs = spec.overrides.clone();
     ovs.extend(case.overrides(&spec.grid.keys()));
-    input::load(&spec.path, &ovs).map_err(|e| vary_error(e, spec, case))
+    spec.document
+        .model(&ovs)
+        .map_err(|e| vary_error(e, spec, case))
 }
 
 /// Checks every case of the shard and builds the header.
 pub fn prepare(spec: &SweepSpec) -> Result<Prepared, SweepError> {
-    let (base, source) = input::load(&spec.path, &spec.overrides).map_err(SweepError::Input)?;
+    let (base, source) = spec
+        .document
+        .model(&spec.overrides)
+        .map_err(SweepError::Input)?;
     let cases = spec.grid.cases(spec.shard);
     let models = cases
         .par_iter()

@@ -21,10 +21,10 @@ pub const SCAN_POINTS: usize = 16;
 pub const MAX_EVALUATIONS: usize = 100;
 
 /// What to solve for.
-#[derive(Debug, Clone)]
+#[derive(Debug)]
 pub struct TargetSpec {
-    /// The input file.
-    pub path: std::path::PathBuf,
+    /// The input, read once.
+    pub document: crate::input::Document,
     /// `--set` overrides.
     pub overrides: Vec<Override>,
     /// The key to solve for.
@@ -191,7 +191,7 @@ pub fn solve_target(
             key: spec.key.clone(),
             value: format!("{x:?}"),
         };
-        evaluate(&spec.path, &spec.overrides, &[ov], spec.quantity)
+        evaluate(&spec.document, &spec.overrides, &[ov], spec.quantity)
             .map(|q| q - spec.target)
             .map_err(|source| TargetError::Eval {
                 key: spec.key.clone(),

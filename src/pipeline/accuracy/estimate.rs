@@ -27,7 +27,7 @@ pub fn estimate(model: &Model, sol: &mut Solution, params: &EigenParams) -> Resu
     let count = sol.levels.len();
     let steps = sol.grid.steps();
     let (m2, m3) = coarse_steps(steps);
-    let needed = first + count + 2 * model.grid.order.half_width() + 2;
+    let needed = model.grid.points_for_levels(first + count);
     let g2 = Grid::with_steps(&model.domain, m2);
     if g2.points < needed {
         sol.warnings.push(format!(

@@ -17,7 +17,6 @@ pub mod estimate;
 pub mod refine;
 pub mod richardson;
 
-use crate::grid::Scheme;
 use crate::input::model::Model;
 
 pub use estimate::estimate;
@@ -26,10 +25,7 @@ pub use richardson::{analyse, observed_order, LevelError};
 
 /// The order the error of the model's levels should fall with.
 pub fn expected_order(model: &Model, has_edges: bool) -> f64 {
-    let p = match model.grid.scheme {
-        Scheme::FiniteDifference => model.grid.order.get() as f64,
-        Scheme::Numerov => 4.0,
-    };
+    let p = f64::from(model.grid.accuracy_order());
     if has_edges {
         p.min(2.0)
     } else {
