@@ -111,7 +111,7 @@ pub enum FormulaErrorKind {
     },
 }
 
-/// An error found while compiling a [`Formula`].
+/// An error found while compiling a [`Formula`](super::Formula).
 ///
 /// The offset is the 0-based character column inside the source text where
 /// the fault is (one past the last character for a premature end; 0 for

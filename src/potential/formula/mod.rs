@@ -84,7 +84,7 @@ mod parse;
 mod tests;
 
 pub use error::{FormulaError, FormulaErrorKind};
-pub use kinks::KINK_SAMPLES;
+pub use kinks::{BRACKET_TOLERANCE, KINK_SAMPLES};
 
 use eval::{Op, Program};
 
