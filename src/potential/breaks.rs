@@ -20,9 +20,14 @@ use super::terms::Term;
 /// straddle the break then errs by `O(h^(q-2))` at the few points beside
 /// it, which moves a level by about `O(h^(q-1))` (a first-order
 /// perturbation estimate of ours, no source): `h`, `h^2` and `h^4`, with a
-/// coefficient that varies erratically with `h` unless the break sits on a
-/// grid point. A jump or a kink thus limits every stencil; a weak break
-/// only stencils of order 6 and 8 and Numerov.
+/// coefficient that depends on where the break falls between two grid
+/// points, and so varies erratically with `h` unless the break stays on a
+/// grid point as the grid is refined. A jump or a kink thus limits every
+/// stencil; a weak break only stencils of order 6 and 8 and Numerov.
+/// (Measured for `2*abs(x - 0.005)` on [-20, 20] Å, ground level: with the
+/// corner on a grid point the error falls by 4.00 per halving of `h` at
+/// orders 4 and 8 alike, -3.30e-6 eV at h = 0.005 Å; off the grid points
+/// its sign and size jump from grid to grid.)
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum BreakKind {
     /// V itself jumps.

@@ -62,8 +62,8 @@
 //!
 //! `abs`, `min` and `max` make corners: `V` is continuous there but its
 //! slope jumps, which costs finite differences their order.
-//! [`Formula::kinks`] finds them on an interval (see the `kinks` module for
-//! the method and what it can miss).
+//! [`Formula::kinks`] finds them on an interval; its docs give the method
+//! and what it can miss.
 //!
 //! # Files
 //!
