@@ -437,6 +437,36 @@ impl Table {
     pub fn rows(&self) -> (&[f64], &[f64]) {
         self.knots()
     }
+
+    /// How values between rows are found.
+    pub fn interpolation(&self) -> Interpolation {
+        match self.curve {
+            Curve::Linear { .. } => Interpolation::Linear,
+            Curve::Cubic(_) => Interpolation::Cubic,
+        }
+    }
+
+    /// The potential outside the table's `x` range.
+    pub fn outside(&self) -> Outside {
+        self.outside
+    }
+
+    /// The spline through the rows, for [`Interpolation::Cubic`].
+    pub fn spline(&self) -> Option<&NaturalCubicSpline> {
+        match &self.curve {
+            Curve::Cubic(s) => Some(s),
+            Curve::Linear { .. } => None,
+        }
+    }
+
+    /// `V` just outside the first and the last row, eV.
+    pub fn outside_values(&self) -> (f64, f64) {
+        let (_, ys) = self.knots();
+        match self.outside {
+            Outside::Value(v) => (v, v),
+            Outside::Hold => (ys[0], ys[ys.len() - 1]),
+        }
+    }
 }
 
 #[cfg(test)]

@@ -146,35 +146,16 @@ impl Term {
         }
     }
 
-    /// Where this term jumps, Å.
+    /// Where this term jumps, Å: step edges, window edges where the inside
+    /// value is not zero, table ends whose value differs from the outside
+    /// value. A window edge where the value is zero on both sides is a
+    /// corner instead (see [`super::BreakKind`]).
     pub fn discontinuities(&self) -> Vec<f64> {
-        match self {
-            Term::Step { from, to, .. } => vec![*from, *to],
-            Term::Ripple {
-                window: Some((a, b)),
-                ..
-            }
-            | Term::Linear {
-                window: Some((a, b)),
-                ..
-            } => vec![*a, *b],
-            Term::Table {
-                table, length_unit, ..
-            } => {
-                let (a, b) = table.x_range();
-                let eps = 1e-9 * (1.0 + a.abs().max(b.abs()));
-                let jumps = |at: f64, beyond: f64| table.eval(at) != table.eval(beyond);
-                let mut d = vec![];
-                if jumps(a, a - eps) {
-                    d.push(a * length_unit);
-                }
-                if jumps(b - eps, b + eps) {
-                    d.push(b * length_unit);
-                }
-                d
-            }
-            _ => vec![],
-        }
+        self.fixed_breaks()
+            .into_iter()
+            .filter(|b| b.1 == super::BreakKind::Jump)
+            .map(|b| b.0)
+            .collect()
     }
 }
 
