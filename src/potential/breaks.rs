@@ -58,6 +58,18 @@ const ROUND_OFF: f64 = 16.0;
 const TABLE_FLAT: f64 = 1e-12;
 
 impl Term {
+    /// Where this term jumps, Å: step edges, window edges where the inside
+    /// value is not zero, table ends whose value differs from the outside
+    /// value. A window edge where the value is zero on both sides is a
+    /// corner instead (see [`BreakKind`]).
+    pub fn discontinuities(&self) -> Vec<f64> {
+        self.fixed_breaks()
+            .into_iter()
+            .filter(|b| b.1 == BreakKind::Jump)
+            .map(|b| b.0)
+            .collect()
+    }
+
     /// The breaks of this term that do not depend on the domain (every
     /// shape but `formula`), Å, in no particular order.
     pub(super) fn fixed_breaks(&self) -> Vec<(f64, BreakKind)> {

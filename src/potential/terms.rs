@@ -145,18 +145,6 @@ impl Term {
             } => formula.eval(x / length_unit) * energy_unit,
         }
     }
-
-    /// Where this term jumps, Å: step edges, window edges where the inside
-    /// value is not zero, table ends whose value differs from the outside
-    /// value. A window edge where the value is zero on both sides is a
-    /// corner instead (see [`super::BreakKind`]).
-    pub fn discontinuities(&self) -> Vec<f64> {
-        self.fixed_breaks()
-            .into_iter()
-            .filter(|b| b.1 == super::BreakKind::Jump)
-            .map(|b| b.0)
-            .collect()
-    }
 }
 
 #[cfg(test)]
