@@ -64,13 +64,23 @@ impl Data {
     /// blank lines are skipped.
     pub fn read(path: &Path) -> Result<Self, DataError> {
         let file = path.display().to_string();
+        let text = std::fs::read_to_string(path).map_err(|e| DataError {
+            file: file.clone(),
+            line: 0,
+            message: format!("cannot read: {e}"),
+        })?;
+        Self::parse(&file, &text)
+    }
+
+    /// Reads the CSV text of a series, as [`Data::read`] reads a file;
+    /// `file` names it in messages.
+    pub fn parse(file: &str, text: &str) -> Result<Self, DataError> {
+        let file = file.to_string();
         let err = |line: usize, message: String| DataError {
             file: file.clone(),
             line,
             message,
         };
-        let text =
-            std::fs::read_to_string(path).map_err(|e| err(0, format!("cannot read: {e}")))?;
         let mut lines = text
             .lines()
             .enumerate()
@@ -192,6 +202,16 @@ mod tests {
         assert_eq!(d.rows[1].value, CaseValue::Int(5));
         assert_eq!(d.rows[1].uncertainty, Some(0.2));
         assert_eq!(d.rows[1].line, 5);
+    }
+
+    #[test]
+    fn text_reads_as_a_file_does() {
+        let text = "chain.bonds,gap,uncertainty\n3,1.5,0.1\n5,1.25,0.2\n";
+        let mut from_file = read(text).unwrap();
+        from_file.file = "series".into();
+        assert_eq!(Data::parse("series", text).unwrap(), from_file);
+        let e = Data::parse("series", "chain.bonds,gap\n3,x\n").unwrap_err();
+        assert_eq!((e.file.as_str(), e.line), ("series", 2));
     }
 
     #[test]

@@ -21,7 +21,7 @@ use super::cases::{Case, CaseGrid, CaseValue, Shard};
 use super::runner::Runner;
 use crate::input::{Document, InputError, Model, Override, SourceText};
 use crate::pipeline::record::{level_records, occupancy_record, LevelRecord, OccupancyRecord};
-use crate::pipeline::{self, SolveError};
+use crate::pipeline::{self, Fault, SolveError};
 
 /// The format name of sweep documents.
 pub const FORMAT: &str = "chainwell.sweep/1";
@@ -210,6 +210,39 @@ pub fn solve_case(case: &Case, model: &Model) -> Result<SweepRow, SolveError> {
         occupancy: sol.occupancy.as_ref().map(|o| occupancy_record(model, o)),
         warnings: sol.warnings.clone(),
     })
+}
+
+/// A failed sweep's fault as the user meets it (the command line's and the
+/// Python module's): input faults located at their key, a fault in a
+/// varied value at its `--vary` flag, a fault found by a case's solve
+/// prefixed with the case; a computation that could not finish keeps its
+/// reason, prefixed with the case.
+pub fn locate_error(spec: &SweepSpec, e: SweepError) -> Fault {
+    match e {
+        SweepError::Input(i) => Fault::Input(i),
+        SweepError::Document(m) => Fault::Usage(m),
+        SweepError::Solve {
+            case,
+            label,
+            source,
+        } => {
+            let c = spec.grid.case(case);
+            match load_case(spec, &c) {
+                Ok((model, text)) => match source.locate(&model, &text) {
+                    Fault::Input(i) => {
+                        let mut i = vary_error(i, spec, &c);
+                        if !i.location.file.starts_with("--vary") {
+                            i.message = format!("case {label}: {}", i.message);
+                        }
+                        Fault::Input(i)
+                    }
+                    Fault::Compute(m) => Fault::Compute(format!("case {label}: {m}")),
+                    other => other,
+                },
+                Err(i) => Fault::Input(i),
+            }
+        }
+    }
 }
 
 /// Runs the prepared cases that are not already among `done` (rows of an
