@@ -35,6 +35,7 @@
 pub mod bands;
 pub mod constants;
 pub mod eigen;
+pub mod files;
 pub mod grid;
 pub mod hamiltonian;
 pub mod input;

@@ -186,6 +186,8 @@ const CASES: &[Case] = &[
     // Electrons written in the input that the computed levels cannot hold
     // (a chain's one-per-atom default only skips the filling, with a warning).
     case("chain_electrons_beyond_computed_levels", "[chain]\nbonds = 9\n[grid]\npoints = 40\n[levels]\ncount = 4\nelectrons = 10\n", "in.toml:7:13", "levels.electrons"),
+    // Regression: levels.count beside levels.below was silently ignored.
+    case("below_with_count", concat!(domain!(), "[levels]\nbelow = 1.0\ncount = 3\n"), "in.toml:8:9", "levels.count"),
     case("grid_too_small_for_stencil", "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 5\norder = 8\n", "in.toml:5:10", "grid.points"),
     // --- other refused values ---
     case("order_not_allowed", "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\norder = 5\n", "in.toml:5:9", "grid.order"),

@@ -7,7 +7,7 @@ use chainwell::report;
 use chainwell::study::bands::{self, BandsSpec, DEFAULT_KPOINTS};
 
 use super::figure::FigureArgs;
-use super::{json_text, parse_overrides, CommandError, Outcome};
+use super::{json_text, parse_overrides, CommandError, Outcome, Plan};
 
 /// Flags of `chainwell bands`.
 #[derive(clap::Args, Debug)]
@@ -54,6 +54,14 @@ pub fn run(args: BandsArgs) -> Result<Outcome, CommandError> {
         finite,
     };
     let document = Document::open(&args.input)?;
+    // Reads the tables the input names, so that the same-file rule sees
+    // them; the model itself is checked again by the study.
+    document.model(&overrides)?;
+    Plan::new()
+        .document(&args.input, &document)
+        .output("--csv", args.csv.as_deref())
+        .output("--plot", figure.as_ref().map(|f| f.path.as_path()))
+        .check()?;
     let (model, source, result) = bands::compute(&document, &overrides, &spec)?;
     if let Some(csv_path) = &args.csv {
         chainwell::output::write_atomic(

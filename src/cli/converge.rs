@@ -4,12 +4,12 @@
 use std::path::PathBuf;
 
 use chainwell::eigen::EigenParams;
-use chainwell::input;
+use chainwell::input::Document;
 use chainwell::report;
 use chainwell::study::converge;
 
 use super::figure::FigureArgs;
-use super::{json_text, parse_overrides, CommandError, Outcome};
+use super::{json_text, parse_overrides, CommandError, Outcome, Plan};
 
 /// Flags of `chainwell converge`.
 #[derive(clap::Args, Debug)]
@@ -34,7 +34,26 @@ pub struct ConvergeArgs {
 pub fn run(args: ConvergeArgs) -> Result<Outcome, CommandError> {
     let overrides = parse_overrides(&args.set)?;
     let figure = args.plot.check(&["errors"])?;
-    let (model, source) = input::load(&args.input, &overrides)?;
+    if args.grids < 3 {
+        return Err(CommandError::Usage(format!(
+            "--grids {}: a convergence order needs at least 3 grids",
+            args.grids
+        )));
+    }
+    let document = Document::open(&args.input)?;
+    let (model, source) = document.model(&overrides)?;
+    Plan::new()
+        .document(&args.input, &document)
+        .output("--plot", figure.as_ref().map(|f| f.path.as_path()))
+        .check()?;
+    let usable = converge::usable_grids(&model, args.grids);
+    if usable < args.grids {
+        return Err(CommandError::Usage(format!(
+            "--grids {}: halving the grid of {} points leaves {usable} grids that still hold the levels asked for; ask for --grids {usable} or fewer, or raise grid.points",
+            args.grids,
+            converge::finest_points(&model, args.grids),
+        )));
+    }
     let conv = converge::converge(&model, args.grids, &EigenParams::default())
         .map_err(|e| e.locate(&model, &source))?;
     if let Some(plan) = &figure {

@@ -13,7 +13,7 @@ use chainwell::study::target::{self, TargetError, TargetSpec};
 use serde_json::{json, Value};
 
 use super::figure::FigureArgs;
-use super::{json_text, parse_overrides, CommandError, Outcome};
+use super::{json_text, parse_overrides, CommandError, Outcome, Plan};
 
 /// Flags of `chainwell fit`.
 #[derive(clap::Args, Debug)]
@@ -163,7 +163,10 @@ fn resume_values(args: &FitArgs) -> Result<Vec<(String, f64)>, CommandError> {
         return Ok(vec![]);
     };
     let bad = |m: String| CommandError::Usage(format!("--resume {}: {m}", file.display()));
-    let text = std::fs::read_to_string(file).map_err(|e| bad(format!("cannot read: {e}")))?;
+    let bytes =
+        chainwell::files::read_capped(file).map_err(|e| bad(format!("cannot read: {e}")))?;
+    let text = String::from_utf8(bytes)
+        .map_err(|_| bad(format!("not a {} document (not UTF-8 text)", fit::FORMAT)))?;
     let doc: Value = serde_json::from_str(&text).map_err(|e| bad(format!("not JSON: {e}")))?;
     if doc["format"] != fit::FORMAT {
         return Err(bad(format!("not a {} document", fit::FORMAT)));
@@ -190,14 +193,37 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
     let document = Document::open(&args.input)?;
     let (base, source) = document.model(&overrides)?;
     let units = base.units.to_json();
+    let mut plan = Plan::new();
+    plan.document(&args.input, &document);
+    if let Some(d) = &args.data {
+        plan.input("--data", d);
+    }
+    if let Some(r) = &args.resume {
+        plan.input("--resume", r);
+    }
+    match (&args.save, &args.resume) {
+        (Some(s), Some(r)) if chainwell::files::same_file(s, r) => {}
+        (Some(s), _) => {
+            plan.output("--save", Some(s));
+        }
+        _ => {}
+    }
+    plan.output("--plot", figure.as_ref().map(|f| f.path.as_path()));
+    if args.save.is_none() {
+        if let Some(r) = &args.resume {
+            chainwell::files::check_output("--resume", r).map_err(CommandError::Usage)?;
+        }
+    }
+    plan.check()?;
     let resume = resume_values(&args)?;
     let free = frees(&args, &document, &overrides, &resume)?;
     let stop = checkpoint::interrupt_flag();
-    let saver = args
-        .save
-        .as_deref()
-        .or(args.resume.as_deref())
-        .map(|p| Saver::new(p, std::time::Duration::ZERO));
+    let save_path = args.save.as_deref().or(args.resume.as_deref());
+    let _lock = save_path
+        .map(chainwell::output::Lock::acquire)
+        .transpose()
+        .map_err(CommandError::Usage)?;
+    let saver = save_path.map(|p| Saver::new(p, std::time::Duration::ZERO));
     let save = |doc: &Value| -> Result<(), CommandError> {
         if let Some(s) = &saver {
             s.save(true, || text(doc)).map_err(|e| {

@@ -5,7 +5,7 @@ use std::path::PathBuf;
 use chainwell::study::merge;
 use chainwell::study::sweep::SweepResult;
 
-use super::{CommandError, Outcome};
+use super::{CommandError, Outcome, Plan};
 
 /// Flags of `chainwell merge`.
 #[derive(clap::Args, Debug)]
@@ -32,6 +32,11 @@ pub fn run(args: MergeArgs) -> Result<Outcome, CommandError> {
             "merge joins finished documents; --set has nothing to change there".into(),
         ));
     }
+    let mut plan = Plan::new();
+    for f in &args.files {
+        plan.input("a merge part", f);
+    }
+    plan.output("--csv", args.csv.as_deref()).check()?;
     let parts = args
         .files
         .iter()

@@ -13,8 +13,10 @@ pub mod starter;
 pub mod sweep;
 
 use std::io::Write;
+use std::path::Path;
 
-use chainwell::input::{InputError, Override};
+use chainwell::files::RunFiles;
+use chainwell::input::{Document, InputError, Override};
 use chainwell::pipeline::Fault;
 
 /// Why a command failed.
@@ -91,6 +93,71 @@ pub fn parse_overrides(sets: &[String]) -> Result<Vec<Override>, CommandError> {
     sets.iter()
         .map(|s| Override::parse(s).map_err(|m| CommandError::Usage(format!("--set {s}: {m}"))))
         .collect()
+}
+
+/// The files a run reads and writes, checked before any work: every
+/// output can be written (its folder exists and takes files), and none is
+/// one of the inputs or another output (see [`chainwell::files`]).
+#[derive(Debug, Default)]
+pub struct Plan {
+    files: RunFiles,
+    outputs: Vec<(String, std::path::PathBuf, bool)>,
+}
+
+impl Plan {
+    /// An empty plan.
+    pub fn new() -> Self {
+        Self::default()
+    }
+
+    /// The input file and every table file its models read so far.
+    pub fn document(&mut self, input: &Path, document: &Document) -> &mut Self {
+        self.files.input("the input file", input);
+        for t in document.tables().paths() {
+            self.files.input("a table the input reads", &t);
+        }
+        self
+    }
+
+    /// Another input (`--data`, `--resume`, a merge part).
+    pub fn input(&mut self, role: &str, path: &Path) -> &mut Self {
+        self.files.input(role, path);
+        self
+    }
+
+    /// An output file, when given.
+    pub fn output(&mut self, role: &str, path: Option<&Path>) -> &mut Self {
+        if let Some(p) = path {
+            self.files.output(role, p);
+            self.outputs
+                .push((role.to_string(), p.to_path_buf(), false));
+        }
+        self
+    }
+
+    /// An output folder of several files (`solve --csv DIR`).
+    pub fn output_dir(&mut self, role: &str, dir: Option<&Path>, names: &[&str]) -> &mut Self {
+        if let Some(d) = dir {
+            for n in names {
+                self.files.output(role, &d.join(n));
+            }
+            self.outputs.push((role.to_string(), d.to_path_buf(), true));
+        }
+        self
+    }
+
+    /// Checks every output and the same-file rule (exit status 2).
+    pub fn check(&self) -> Result<(), CommandError> {
+        for (role, path, dir) in &self.outputs {
+            let r = if *dir {
+                chainwell::files::check_output_dir(role, path)
+            } else {
+                chainwell::files::check_output(role, path)
+            };
+            r.map_err(CommandError::Usage)?;
+        }
+        self.files.check().map_err(CommandError::Usage)
+    }
 }
 
 /// Pretty JSON with a final newline.

@@ -2,12 +2,12 @@
 
 use std::path::PathBuf;
 
-use chainwell::input;
+use chainwell::input::Document;
 use chainwell::pipeline::{self, SolveOptions};
 use chainwell::report;
 
 use super::figure::FigureArgs;
-use super::{json_text, parse_overrides, CommandError, Outcome};
+use super::{json_text, parse_overrides, CommandError, Outcome, Plan};
 
 /// Flags of `chainwell solve`.
 #[derive(clap::Args, Debug)]
@@ -39,7 +39,13 @@ pub struct SolveArgs {
 pub fn run(args: SolveArgs) -> Result<Outcome, CommandError> {
     let overrides = parse_overrides(&args.set)?;
     let figure = args.plot.check(&["states", "density", "spectrum"])?;
-    let (model, source) = input::load(&args.input, &overrides)?;
+    let document = Document::open(&args.input)?;
+    let (model, source) = document.model(&overrides)?;
+    Plan::new()
+        .document(&args.input, &document)
+        .output("--plot", figure.as_ref().map(|f| f.path.as_path()))
+        .output_dir("--csv", args.csv.as_deref(), &report::solve_csv::FILE_NAMES)
+        .check()?;
     let opts = SolveOptions {
         estimate: !args.no_estimate,
         ..Default::default()

@@ -14,7 +14,7 @@ use chainwell::study::sweep::{self, SweepError, SweepResult, SweepRow, SweepSpec
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 
 use super::figure::FigureArgs;
-use super::{parse_overrides, CommandError, Outcome};
+use super::{parse_overrides, CommandError, Outcome, Plan};
 
 /// Flags of `chainwell sweep`.
 #[derive(clap::Args, Debug)]
@@ -154,6 +154,29 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
         shard,
     };
     let prepared = sweep::prepare(&spec).map_err(|e| case_error(&spec, e))?;
+    // The checkpoint: --save, else the --resume file itself (which is
+    // then both read and rewritten, by design).
+    let save_path = args.save.as_deref().or(args.resume.as_deref());
+    let mut plan = Plan::new();
+    plan.document(&args.input, &spec.document);
+    if let Some(r) = &args.resume {
+        plan.input("--resume", r);
+    }
+    match (&args.save, &args.resume) {
+        (Some(s), Some(r)) if chainwell::files::same_file(s, r) => {}
+        (Some(s), _) => {
+            plan.output("--save", Some(s));
+        }
+        _ => {}
+    }
+    plan.output("--csv", args.csv.as_deref())
+        .output("--plot", figure.as_ref().map(|f| f.path.as_path()));
+    if args.save.is_none() {
+        if let Some(r) = &args.resume {
+            chainwell::files::check_output("--resume", r).map_err(CommandError::Usage)?;
+        }
+    }
+    plan.check()?;
     let mut done: Vec<SweepRow> = Vec::new();
     if let Some(file) = &args.resume {
         let previous = SweepResult::read(file).map_err(CommandError::Usage)?;
@@ -169,17 +192,16 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
                 file.display()
             )));
         }
-        done = previous
-            .rows
-            .into_iter()
-            .filter(|r| shard.is_none_or(|s| s.takes(r.case)) && r.case <= prepared.header.cases)
-            .collect();
+        // Every row was checked against its case when the file was read.
+        done = previous.rows;
     }
-    let saver = args
-        .save
-        .as_deref()
-        .or(args.resume.as_deref())
-        .map(|p| Saver::new(p, SAVE_EVERY));
+    // One run at a time saves to a file: a second is refused, not left to
+    // overwrite the first one's rows.
+    let _lock = save_path
+        .map(chainwell::output::Lock::acquire)
+        .transpose()
+        .map_err(CommandError::Usage)?;
+    let saver = save_path.map(|p| Saver::new(p, SAVE_EVERY));
     let interactive =
         (!args.json || std::io::stdout().is_terminal()) && std::io::stderr().is_terminal();
     let bar = ProgressBar::with_draw_target(
@@ -208,14 +230,25 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
     let result = sweep::run(&prepared, done, &runner).map_err(|e| case_error(&spec, e));
     bar.finish_and_clear();
     let result = result?;
+    // A checkpoint that could not be written loses nothing: the rows are
+    // here, the final save is tried once more, and when it fails too the
+    // document is printed for the user to keep.
+    let mut warnings = collect_warnings(&result);
     if let Some(m) = runner.save_error() {
-        return Err(CommandError::Compute(m));
+        warnings.push(format!("a progress save failed: {m}"));
     }
     if let Some(s) = &saver {
-        s.save(true, || report::sweep::sweep_text(&result))
-            .map_err(|e| {
-                CommandError::Compute(format!("cannot write {}: {e}", s.path().display()))
-            })?;
+        if let Err(e) = s.save(true, || report::sweep::sweep_text(&result)) {
+            return Ok(Outcome {
+                stdout: report::sweep::sweep_text(&result),
+                warnings,
+                failure: Some(CommandError::Compute(format!(
+                    "cannot write {}: {e}; the document of the {} finished cases is printed on stdout instead (keep it with > FILE and continue with --resume FILE)",
+                    s.path().display(),
+                    result.rows.len()
+                ))),
+            });
+        }
     }
     write_csv(&result, args.csv.as_deref())?;
     if let Some(plan) = &figure {
@@ -241,7 +274,7 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
     });
     Ok(Outcome {
         stdout: render(&result, args.json),
-        warnings: collect_warnings(&result),
+        warnings,
         failure,
     })
 }

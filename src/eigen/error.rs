@@ -32,7 +32,7 @@ pub enum EigenError {
         residual: f64,
     },
     /// The estimated working memory exceeds `EigenParams::memory_limit`.
-    #[error("needs about {bytes_needed} bytes, limit is {limit}")]
+    #[error("the eigen-solver would need about {:.1} GiB of working memory, above its limit of {:.1} GiB; ask for fewer levels (levels.count) or use a coarser grid (fewer grid.points, a larger grid.spacing)", *.bytes_needed as f64 / 1073741824.0, *.limit as f64 / 1073741824.0)]
     TooLarge {
         /// Estimated bytes of working memory.
         bytes_needed: usize,

@@ -45,7 +45,7 @@ impl Document {
     /// UTF-8, or is not TOML (located at the fault).
     pub fn open(path: &Path) -> Result<Self, InputError> {
         let name = path.display().to_string();
-        let bytes = std::fs::read(path).map_err(|e| {
+        let bytes = crate::files::read_capped(path).map_err(|e| {
             let location = Location {
                 file: name.clone(),
                 line: 0,

@@ -11,7 +11,7 @@ use std::path::{Path, PathBuf};
 use std::sync::{Arc, Mutex, PoisonError};
 
 use super::error::Location;
-use crate::potential::table::{Interpolation, Outside, Table};
+use crate::potential::table::{Interpolation, Outside, Table, TableErrorKind};
 
 /// A fault in a table file, ready to be reported.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -85,6 +85,19 @@ impl TableCache {
         result
     }
 
+    /// The table files asked for so far (found or not), each once, as the
+    /// input named them (joined to the input's folder).
+    pub fn paths(&self) -> Vec<PathBuf> {
+        let entries = self.entries.lock().unwrap_or_else(PoisonError::into_inner);
+        let mut out: Vec<PathBuf> = Vec::new();
+        for (k, _) in entries.iter() {
+            if !out.contains(&k.path) {
+                out.push(k.path.clone());
+            }
+        }
+        out
+    }
+
     /// How many times a table file was read (and parsed) through this cache.
     pub fn reads(&self) -> usize {
         *self.reads.lock().unwrap_or_else(PoisonError::into_inner)
@@ -101,10 +114,24 @@ fn read(
     Table::read(path, interpolation, outside)
         .map(Arc::new)
         .map_err(|e| {
+            // A fault in the header means the file may not be a table at
+            // all (a path pointing at some other file): its lines are not
+            // shown, only their place.
+            let header_fault = matches!(
+                e.kind(),
+                TableErrorKind::NoHeader
+                    | TableErrorKind::MissingColumn { .. }
+                    | TableErrorKind::DuplicateColumn { .. }
+                    | TableErrorKind::NotUtf8 { .. }
+            );
             let at = e.line().map(|line| {
-                let text = std::fs::read_to_string(path).ok();
+                let text = crate::files::read_capped(path)
+                    .ok()
+                    .filter(|_| !header_fault)
+                    .and_then(|b| String::from_utf8(b).ok());
                 let line_text = text
                     .as_deref()
+                    .map(|t| t.strip_prefix('\u{feff}').unwrap_or(t))
                     .and_then(|t| t.lines().nth(line.saturating_sub(1)))
                     .map(str::to_string);
                 let column = match (e.column(), &line_text) {

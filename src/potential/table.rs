@@ -350,16 +350,19 @@ impl Table {
         interpolation: Interpolation,
         outside: Outside,
     ) -> Result<Table, TableError> {
-        let bytes = std::fs::read(path).map_err(|source| {
-            let kind = if source.kind() == std::io::ErrorKind::NotFound {
-                TableErrorKind::NotFound {
+        let bytes = crate::files::read_capped(path).map_err(|e| {
+            let kind = match e {
+                crate::files::ReadError::NotFound => TableErrorKind::NotFound {
                     path: path.to_path_buf(),
-                }
-            } else {
-                TableErrorKind::Io {
+                },
+                crate::files::ReadError::Io(source) => TableErrorKind::Io {
                     path: path.to_path_buf(),
                     source,
-                }
+                },
+                other => TableErrorKind::Io {
+                    path: path.to_path_buf(),
+                    source: std::io::Error::other(other.to_string()),
+                },
             };
             TableError::new(kind, None, None)
         })?;

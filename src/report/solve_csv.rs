@@ -7,8 +7,15 @@ use std::path::Path;
 
 use crate::input::Model;
 use crate::observables::Spectrum;
-use crate::output::write_atomic;
 use crate::pipeline::Solution;
+
+/// The names of the four files, in the order [`solve_files`] gives them.
+pub const FILE_NAMES: [&str; 4] = [
+    "levels.csv",
+    "wavefunctions.csv",
+    "transitions.csv",
+    "spectrum.csv",
+];
 
 /// The four files' contents, by file name.
 pub fn solve_files(
@@ -77,10 +84,10 @@ pub fn solve_files(
         let _ = writeln!(sp, "{},{}", num(*w), num(*eps));
     }
     vec![
-        ("levels.csv", levels),
-        ("wavefunctions.csv", wf),
-        ("transitions.csv", tr),
-        ("spectrum.csv", sp),
+        (FILE_NAMES[0], levels),
+        (FILE_NAMES[1], wf),
+        (FILE_NAMES[2], tr),
+        (FILE_NAMES[3], sp),
     ]
 }
 
@@ -99,11 +106,10 @@ pub fn num(x: f64) -> String {
     }
 }
 
-/// Writes the files into `dir` (created if missing), each atomically.
+/// Writes the files into `dir` (created if missing) as one set: the old
+/// set stays whole until every new file is complete
+/// ([`crate::output::write_set`]).
 pub fn write_solve_files(dir: &Path, files: &[(&str, String)]) -> std::io::Result<()> {
-    std::fs::create_dir_all(dir)?;
-    for (name, text) in files {
-        write_atomic(&dir.join(name), text.as_bytes())?;
-    }
-    Ok(())
+    let set: Vec<(&str, &[u8])> = files.iter().map(|(n, t)| (*n, t.as_bytes())).collect();
+    crate::output::write_set(dir, &set)
 }

@@ -130,6 +130,7 @@ pub fn header_json(h: &SweepHeader) -> Map<String, Value> {
         doc.insert("shard".into(), json!({"index": s.index, "count": s.count}));
     }
     doc.insert("input".into(), h.input.clone());
+    doc.insert("input_digest".into(), json!(h.digest()));
     doc
 }
 

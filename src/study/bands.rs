@@ -171,6 +171,77 @@ pub fn check_kpoints(kpoints: usize) -> Result<(), Fault> {
     Ok(())
 }
 
+/// Points of the cell [`cell_from_model`] builds for `model`, found
+/// without building it (no allocation), for the memory estimate.
+pub fn cell_points(model: &Model) -> usize {
+    use crate::grid::{Boundary, Domain};
+    use crate::input::model::{Resolution, DEFAULT_SPACING_ANGSTROM};
+    let (from, period, spacing) = match &model.chain {
+        Some(c) => (
+            c.atom_position(1),
+            2.0 * c.bond_length,
+            crate::pipeline::grid_for(model).spacing,
+        ),
+        None => (
+            model.domain.from,
+            model.domain.length(),
+            match model.grid.resolution {
+                Resolution::Points(n) => model.domain.length() / n as f64,
+                Resolution::Spacing(h) => h,
+                Resolution::Tolerance(_) => DEFAULT_SPACING_ANGSTROM,
+            },
+        ),
+    };
+    let ring = Domain {
+        from,
+        to: from + period,
+        boundary: Boundary::Periodic,
+    };
+    Grid::with_spacing(&ring, spacing).points
+}
+
+/// Estimated bytes of a band structure of a cell of `points` points,
+/// `kpoints` wavevectors and `nbands` bands solved `threads` k points at a
+/// time: per k point in flight the dense `points x points` complex Bloch
+/// matrix and the eigen-solver's working copy (16 bytes an entry each), and
+/// for the result `kpoints x (2 nbands + 1)` numbers. Floating point, so that
+/// it cannot overflow.
+pub fn memory_estimate(points: usize, kpoints: usize, nbands: usize, threads: usize) -> f64 {
+    let m = points as f64;
+    let per_k = 2.0 * m * m * 16.0 + 8.0 * m * 8.0;
+    let result = kpoints as f64 * (2.0 * nbands as f64 + 1.0) * 8.0;
+    threads.clamp(1, kpoints.max(1)) as f64 * per_k + result
+}
+
+/// Refuses a band study whose [`memory_estimate`] is above
+/// [`crate::pipeline::MEMORY_LIMIT_BYTES`], saying what to change.
+fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
+    use crate::pipeline::MEMORY_LIMIT_BYTES;
+    let points = cell_points(model);
+    let nbands = if model.levels.count_given {
+        model.levels.count
+    } else {
+        DEFAULT_BANDS.min(points)
+    };
+    let threads = rayon::current_num_threads();
+    let bytes = memory_estimate(points, kpoints, nbands, threads);
+    if bytes <= MEMORY_LIMIT_BYTES {
+        return Ok(());
+    }
+    let gib = 1024.0 * 1024.0 * 1024.0;
+    let results = memory_estimate(0, kpoints, nbands, threads);
+    let change = if bytes - results > bytes / 2.0 {
+        "use a coarser grid.spacing (fewer points per cell) or fewer threads (RAYON_NUM_THREADS)"
+    } else {
+        "use fewer --kpoints (or fewer bands, levels.count)"
+    };
+    Err(Fault::Compute(format!(
+        "the bands of a cell of {points} points at {kpoints} k points would need about {:.1} GiB (a dense {points} x {points} complex matrix per k point, {threads} at a time), above the limit of {:.0} GiB; {change}",
+        bytes / gib,
+        MEMORY_LIMIT_BYTES / gib
+    )))
+}
+
 /// Checks the input with `overrides`, computes its bands and, when asked,
 /// the finite chains; returns the model, its source text and the result.
 pub fn compute(
@@ -181,6 +252,7 @@ pub fn compute(
     let start = Instant::now();
     check_kpoints(spec.kpoints)?;
     let (model, source) = document.model(overrides).map_err(Fault::Input)?;
+    check_memory(&model, spec.kpoints)?;
     if spec.finite.is_some() && model.chain.is_none() {
         return Err(Fault::Usage(
             "--finite lays finite chains beside the bands and needs an input with a [chain]".into(),

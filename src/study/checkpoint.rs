@@ -1,8 +1,11 @@
-//! Interrupted work is not lost: Ctrl-C and progress files.
+//! Interrupted work is not lost: Ctrl-C, the scheduler's stop, and progress
+//! files.
 //!
-//! [`interrupt_flag`] installs a Ctrl-C (SIGINT) handler, once per process,
-//! that only sets a flag; running studies poll it, start no new case, and
-//! finish with the cases already done. A [`Saver`] writes the document of
+//! [`interrupt_flag`] installs one handler, once per process, for Ctrl-C
+//! (SIGINT), SIGTERM (how batch schedulers such as Slurm stop a job, some
+//! seconds before they kill it) and SIGHUP (a closed terminal), that only
+//! sets a flag; running studies poll it, start no new case, and finish with
+//! the cases already done. A [`Saver`] writes the document of
 //! the cases finished so far to a file with `"complete": false`, atomically
 //! ([`crate::output::write_atomic`]), at most every few seconds while the
 //! study runs, so the file is always a whole, valid document that a rerun
@@ -16,9 +19,9 @@ use std::time::{Duration, Instant};
 static INTERRUPTED: AtomicBool = AtomicBool::new(false);
 static HANDLER: OnceLock<bool> = OnceLock::new();
 
-/// The flag Ctrl-C sets. The handler is installed on the first call; when
-/// it cannot be (another handler is already there), the flag is still
-/// returned and simply never set by Ctrl-C.
+/// The flag Ctrl-C, SIGTERM and SIGHUP set. The handler is installed on
+/// the first call; when it cannot be (another handler is already there),
+/// the flag is still returned and simply never set by a signal.
 pub fn interrupt_flag() -> &'static AtomicBool {
     HANDLER.get_or_init(|| {
         ctrlc::set_handler(|| {

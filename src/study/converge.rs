@@ -41,17 +41,54 @@ pub struct Convergence {
     pub rows: Vec<ConvergenceRow>,
 }
 
-/// Solves the model on `grids` grids, the finest the model's own (aligned
-/// so that every grid keeps jumps on grid points), each coarser one with
-/// half the steps.
+/// Most grids a study asks for: halving a grid 30 times leaves fewer
+/// points than any level needs, whatever the finest grid.
+pub const MAX_GRIDS: usize = 31;
+
+/// The finest grid of a study of `grids` grids (the model's own, aligned
+/// so that halving keeps every jump on a grid point).
+fn finest_grid(model: &Model, grids: usize) -> Grid {
+    let grids = grids.clamp(3, MAX_GRIDS);
+    grid_near(model, wanted_steps(model), 1usize << (grids - 1))
+}
+
+/// Points of the finest grid of a study of `grids` grids.
+pub fn finest_points(model: &Model, grids: usize) -> usize {
+    finest_grid(model, grids).points
+}
+
+/// How many of `grids` grids [`converge`] can use: the finest and those of
+/// the halved grids that still hold the levels asked for (a study of
+/// `levels.below` counts its levels only after the solve, so there all are
+/// counted here). Known before any solve, so that a request for more grids
+/// than the model allows is refused at once.
+pub fn usable_grids(model: &Model, grids: usize) -> usize {
+    if model.levels.below.is_some() {
+        return grids;
+    }
+    let finest = finest_grid(model, grids);
+    let (first, count) = model.levels.window();
+    let need = model.grid.points_for_levels(first + count);
+    let coarse = (1..grids.clamp(3, MAX_GRIDS))
+        .filter(|&k| {
+            let steps = (finest.steps() as f64 / (1usize << k) as f64).round() as usize;
+            Grid::with_steps(&model.domain, steps.max(1)).points >= need
+        })
+        .count();
+    coarse + 1
+}
+
+/// Solves the model on `grids` grids (3 to [`MAX_GRIDS`]), the finest the
+/// model's own (aligned so that every grid keeps jumps on grid points),
+/// each coarser one with half the steps; a coarser grid that cannot hold
+/// the levels is left out (see [`usable_grids`]).
 pub fn converge(
     model: &Model,
     grids: usize,
     params: &EigenParams,
 ) -> Result<Convergence, SolveError> {
-    let grids = grids.max(3);
-    let multiple = 1usize << (grids - 1);
-    let finest = grid_near(model, wanted_steps(model), multiple);
+    let grids = grids.clamp(3, MAX_GRIDS);
+    let finest = finest_grid(model, grids);
     let fine = solve_on(model, &finest, params)?;
     let first = fine.levels.first().map_or(0, |l| l.n - 1);
     let count = fine.levels.len();

@@ -64,10 +64,19 @@ impl Data {
     /// blank lines are skipped.
     pub fn read(path: &Path) -> Result<Self, DataError> {
         let file = path.display().to_string();
-        let text = std::fs::read_to_string(path).map_err(|e| DataError {
+        let err = |line: usize, message: String| DataError {
             file: file.clone(),
-            line: 0,
-            message: format!("cannot read: {e}"),
+            line,
+            message,
+        };
+        let bytes =
+            crate::files::read_capped(path).map_err(|e| err(0, format!("cannot read: {e}")))?;
+        let text = String::from_utf8(bytes).map_err(|e| {
+            let line = 1 + e.as_bytes()[..e.utf8_error().valid_up_to()]
+                .iter()
+                .filter(|&&b| b == b'\n')
+                .count();
+            err(line, "the file is not UTF-8 text".into())
         })?;
         Self::parse(&file, &text)
     }
@@ -81,6 +90,9 @@ impl Data {
             line,
             message,
         };
+        // A byte-order mark, as spreadsheet programs write, is not part of
+        // the header (tables accept it too).
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         let mut lines = text
             .lines()
             .enumerate()

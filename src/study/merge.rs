@@ -1,8 +1,11 @@
 //! Joining the documents of a sharded sweep into the unsharded one.
 //!
-//! Every part must come from the same study: the same input text,
-//! overrides, `--vary` flags and case count (the headers must agree apart
-//! from `shard`). The rows are joined in case order; a case found in two
+//! Every part must come from the same study: the same input text and
+//! overrides (compared by their digest, so shards run in different folders
+//! merge), `--vary` flags and case count (the headers must agree apart
+//! from `shard` and the input's file name). Every row of every part has
+//! been checked against the case it claims when the part was read
+//! ([`SweepResult::check_rows`]). The rows are joined in case order; a case found in two
 //! parts must be the same in both. The result is the document an unsharded
 //! run prints, byte for byte, when every case is present.
 
@@ -53,7 +56,7 @@ pub fn differs(a: &SweepHeader, b: &SweepHeader) -> Option<&'static str> {
         Some("the --vary flags")
     } else if a.cases != b.cases {
         Some("the case count")
-    } else if a.input != b.input {
+    } else if a.digest() != b.digest() {
         Some("the input or its --set overrides")
     } else if a.units != b.units {
         Some("the units")

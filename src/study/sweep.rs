@@ -17,7 +17,7 @@ use std::sync::Mutex;
 use rayon::prelude::*;
 use serde_json::{json, Value};
 
-use super::cases::{Case, CaseGrid, CaseValue, Shard};
+use super::cases::{Case, CaseGrid, CaseValue, Shard, Vary};
 use super::runner::Runner;
 use crate::input::{Document, InputError, Model, Override, SourceText};
 use crate::pipeline::record::{level_records, occupancy_record, LevelRecord, OccupancyRecord};
@@ -307,7 +307,59 @@ pub fn run(
     })
 }
 
+/// The digest that identifies a sweep's input, whatever folder it was run
+/// in: FNV-1a 64 ([`crate::files::fnv1a64`]) of the input's text and of
+/// each `--set` override, each followed by a zero byte, as 16 hex digits.
+pub fn input_digest(text: &str, overrides: &[String]) -> String {
+    let mut bytes = Vec::with_capacity(text.len() + 64);
+    bytes.extend_from_slice(text.as_bytes());
+    bytes.push(0);
+    for o in overrides {
+        bytes.extend_from_slice(o.as_bytes());
+        bytes.push(0);
+    }
+    format!("{:016x}", crate::files::fnv1a64(&bytes))
+}
+
 impl SweepHeader {
+    /// The digest of the input text and `--set` overrides this header
+    /// echoes ([`input_digest`]); two shards of one sweep agree on it
+    /// wherever their input files lay.
+    pub fn digest(&self) -> String {
+        let text = self.input["text"].as_str().unwrap_or_default();
+        let overrides: Vec<String> = self.input["overrides"]
+            .as_array()
+            .map(|a| {
+                a.iter()
+                    .map(|o| o.as_str().unwrap_or_default().to_string())
+                    .collect()
+            })
+            .unwrap_or_default();
+        input_digest(text, &overrides)
+    }
+
+    /// The grid of cases the header's `--vary` flags make, checked against
+    /// its keys and case count.
+    pub fn grid(&self) -> Result<CaseGrid, String> {
+        let varies = self
+            .specs
+            .iter()
+            .map(|s| Vary::parse(s).map_err(|e| format!("`vary` holds `{s}`: {e}")))
+            .collect::<Result<Vec<_>, _>>()?;
+        let grid = CaseGrid::new(varies).map_err(|e| format!("`vary`: {e}"))?;
+        if grid.keys() != self.keys {
+            return Err("`keys` are not the keys of the `vary` flags".into());
+        }
+        if grid.len() != self.cases {
+            return Err(format!(
+                "`cases` is {} but the `vary` flags make {} cases",
+                self.cases,
+                grid.len()
+            ));
+        }
+        Ok(grid)
+    }
+
     /// Reads the header back from a document.
     pub fn from_json(doc: &Value) -> Result<Self, String> {
         if doc["format"] != FORMAT {
@@ -335,14 +387,31 @@ impl SweepHeader {
             }),
             None => None,
         };
-        Ok(Self {
+        let header = Self {
             keys,
             specs,
             cases,
             shard,
             units: doc["units"].clone(),
             input: doc["input"].clone(),
-        })
+        };
+        if !header.input["text"].is_string() {
+            return Err("no `input` text".into());
+        }
+        if let Some(d) = doc.get("input_digest") {
+            if d.as_str() != Some(header.digest().as_str()) {
+                return Err(
+                    "`input_digest` does not match the input text and overrides it echoes (the document was edited)"
+                        .into(),
+                );
+            }
+        }
+        if let Some(s) = header.shard {
+            if s.index == 0 || s.index > s.count {
+                return Err(format!("bad `shard` {}/{}", s.index, s.count));
+            }
+        }
+        Ok(header)
     }
 }
 
@@ -388,19 +457,85 @@ impl SweepResult {
             .as_array()
             .ok_or("no `rows` list")?
             .iter()
-            .map(SweepRow::from_json)
+            .enumerate()
+            .map(|(i, r)| SweepRow::from_json(r).map_err(|e| format!("row {}: {e}", i + 1)))
             .collect::<Result<Vec<_>, _>>()?;
-        Ok(Self {
+        let result = Self {
             header,
             rows,
             complete: doc["complete"].as_bool().unwrap_or(true),
-        })
+        };
+        result.check_rows()?;
+        Ok(result)
+    }
+
+    /// Checks every row against the case it claims: a case of the study
+    /// (and of the header's shard), given once, with the values of every
+    /// varied key that case has, and with levels. The error names the row
+    /// (1-based, in the document's order) and its case.
+    pub fn check_rows(&self) -> Result<(), String> {
+        let grid = self.header.grid()?;
+        let keys = &self.header.keys;
+        let mut seen = std::collections::HashSet::new();
+        for (i, row) in self.rows.iter().enumerate() {
+            let at = format!("row {} (case {})", i + 1, row.case);
+            if row.case == 0 || row.case > self.header.cases {
+                return Err(format!(
+                    "{at}: the sweep has cases 1 to {}",
+                    self.header.cases
+                ));
+            }
+            if let Some(s) = self.header.shard {
+                if !s.takes(row.case) {
+                    return Err(format!(
+                        "{at}: shard {}/{} does not run this case",
+                        s.index, s.count
+                    ));
+                }
+            }
+            if !seen.insert(row.case) {
+                return Err(format!("{at}: the case is given twice"));
+            }
+            if row.values.len() != keys.len() {
+                return Err(format!(
+                    "{at}: {} values for {} varied keys",
+                    row.values.len(),
+                    keys.len()
+                ));
+            }
+            let want = grid.case(row.case);
+            for ((key, have), should) in keys.iter().zip(&row.values).zip(&want.values) {
+                if have != should {
+                    return Err(format!(
+                        "{at}: {key} = {} is not this case's value ({key} = {})",
+                        have.toml_text(),
+                        should.toml_text()
+                    ));
+                }
+            }
+            if row.levels.is_empty() {
+                return Err(format!("{at}: the row has no levels"));
+            }
+            if let Some(bad) = row.levels.windows(2).find(|w| w[1].n <= w[0].n) {
+                return Err(format!(
+                    "{at}: level {} follows level {}; levels must be in increasing n",
+                    bad[1].n, bad[0].n
+                ));
+            }
+        }
+        Ok(())
     }
 
     /// Reads a document from a file.
     pub fn read(path: &Path) -> Result<Self, String> {
-        let text = std::fs::read_to_string(path)
+        let bytes = crate::files::read_capped(path)
             .map_err(|e| format!("{}: cannot read: {e}", path.display()))?;
+        let text = String::from_utf8(bytes).map_err(|_| {
+            format!(
+                "{}: not a {FORMAT} document (not UTF-8 text)",
+                path.display()
+            )
+        })?;
         let doc: Value = serde_json::from_str(&text)
             .map_err(|e| format!("{}: not JSON: {e}", path.display()))?;
         Self::from_json(&doc).map_err(|e| format!("{}: {e}", path.display()))

@@ -32,6 +32,13 @@ impl Checker<'_> {
                         "levels.below selects every level under an energy; it cannot be combined with levels.first",
                     ));
                 }
+                if let Some(c) = raw.and_then(|r| r.count.as_ref()) {
+                    return Err(self.err(
+                        c.span(),
+                        "levels.count",
+                        "levels.below selects every level under an energy, however many; it cannot be combined with levels.count (remove one of the two)",
+                    ));
+                }
                 Some(self.energy(b, "levels.below")?)
             }
             None => None,
