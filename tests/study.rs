@@ -251,7 +251,7 @@ fn tidy_csv_has_one_line_per_case_and_level() {
     let lines: Vec<&str> = text.lines().collect();
     assert_eq!(
         lines[0],
-        "case,chain.bonds,n,energy,occupied,homo,lumo,gap,wavelength_nm"
+        "case,chain.bonds,n,energy (eV),occupied,homo,lumo,gap (eV),wavelength (nm)"
     );
     assert_eq!(lines.len(), 1 + 2 * 6);
     // Case 1: 4 electrons fill levels 1 and 2.

@@ -3,14 +3,14 @@
 
 use std::path::PathBuf;
 
-use chainwell::plot::{self, Figure, Size, Style};
+use chainwell::plot::{self, Figure, MeasuredSpectrum, Size, SpectrumAxis, Style};
 
 use super::CommandError;
 
 /// Figure options, shared by every command.
 #[derive(clap::Args, Debug, Clone, Default)]
 pub struct FigureArgs {
-    /// Draw a figure into FILE (.svg or .png).
+    /// Draw a figure into FILE (.svg, .png or .pdf).
     #[arg(long, value_name = "FILE")]
     pub plot: Option<PathBuf>,
     /// Which figure, where the command draws more than one.
@@ -37,6 +37,18 @@ pub struct FigureArgs {
     /// Levels to show, e.g. 1,2,5.
     #[arg(long, value_name = "N,N,...")]
     pub levels: Option<String>,
+    /// Wavefunction height in the states figure, as a fraction of the
+    /// smallest level spacing, in (0, 5] (default 0.4).
+    #[arg(long, value_name = "F")]
+    pub amplitude: Option<f64>,
+    /// Horizontal axis of the spectrum figure: wavelength (nm), energy
+    /// (eV) or wavenumber (cm⁻¹).
+    #[arg(long, value_name = "AXIS")]
+    pub spectrum_axis: Option<String>,
+    /// A measured spectrum to draw over the spectrum figure: a two-column
+    /// CSV, wavelength (nm) or energy (eV), then absorbance or epsilon.
+    #[arg(long, value_name = "FILE")]
+    pub measured_spectrum: Option<PathBuf>,
 }
 
 /// A checked figure request: what to draw, how, and where.
@@ -48,6 +60,11 @@ pub struct FigurePlan {
     pub kind: &'static str,
     /// The style the flags ask for (checked).
     pub style: Style,
+    /// The spectrum figure's horizontal axis.
+    pub spectrum_axis: SpectrumAxis,
+    /// The measured spectrum to draw over the computed one (read and
+    /// checked up front).
+    pub measured: Option<MeasuredSpectrum>,
 }
 
 impl FigurePlan {
@@ -99,7 +116,21 @@ impl FigureArgs {
             })?,
         };
         let style = self.style()?;
+        let spectrum_axis = match self.spectrum_axis.as_deref() {
+            None => SpectrumAxis::Wavelength,
+            Some(a) => SpectrumAxis::parse(a).ok_or_else(|| {
+                usage(format!(
+                    "--spectrum-axis {a}: expected wavelength, energy or wavenumber"
+                ))
+            })?,
+        };
+        let measured = self.measured(kind)?;
         let Some(path) = &self.plot else {
+            if self.measured_spectrum.is_some() {
+                return Err(usage(
+                    "--measured-spectrum draws on the spectrum figure; add --plot FILE".into(),
+                ));
+            }
             return Ok(None);
         };
         plot::check(&style, path).map_err(|e| plot_error(path, e))?;
@@ -107,7 +138,38 @@ impl FigureArgs {
             path: path.clone(),
             kind,
             style,
+            spectrum_axis,
+            measured,
         }))
+    }
+
+    /// Reads `--measured-spectrum`, which only the spectrum figure takes.
+    fn measured(&self, kind: &str) -> Result<Option<MeasuredSpectrum>, CommandError> {
+        let Some(path) = &self.measured_spectrum else {
+            return Ok(None);
+        };
+        if kind != "spectrum" {
+            return Err(usage(format!(
+                "--measured-spectrum {}: only the spectrum figure (--figure spectrum) draws it",
+                path.display()
+            )));
+        }
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            usage(format!(
+                "--measured-spectrum {}: cannot read: {e}",
+                path.display()
+            ))
+        })?;
+        MeasuredSpectrum::parse_csv(&text)
+            .map(Some)
+            .map_err(|(line, msg)| {
+                let at = if line > 0 {
+                    format!("{}:{line}", path.display())
+                } else {
+                    path.display().to_string()
+                };
+                usage(format!("{at}: {msg}"))
+            })
     }
 
     /// The plot style these flags ask for.
@@ -142,6 +204,14 @@ impl FigureArgs {
         }
         if let Some(l) = self.line_pt {
             style.line_pt = l;
+        }
+        if let Some(a) = self.amplitude {
+            if !(a > 0.0 && a <= 5.0) {
+                return Err(usage(format!(
+                    "--amplitude {a}: expected a fraction of the level spacing in (0, 5]"
+                )));
+            }
+            style.amplitude = a;
         }
         style.energy_window = window("--energy-window", &self.energy_window)?;
         style.x_window = window("--x-window", &self.x_window)?;

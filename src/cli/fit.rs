@@ -325,8 +325,9 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
             let doc = report::fit::fit_document(&r, &units, &input);
             save(&doc)?;
             if let Some(plan) = &figure {
-                let energy_unit = units["energy"].as_str().unwrap_or("eV");
-                plan.render(&report::figure::fit(&r, energy_unit))?;
+                let energy = units["energy"].as_str().unwrap_or("eV");
+                let length = units["length"].as_str().unwrap_or("angstrom");
+                plan.render(&report::figure::fit(&r, length, energy))?;
             }
             let stdout = if args.json {
                 text(&doc)

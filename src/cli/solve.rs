@@ -63,7 +63,12 @@ pub fn run(args: SolveArgs) -> Result<Outcome, CommandError> {
     }
     if let Some(plan) = &figure {
         let fig = match plan.kind {
-            "spectrum" => report::figure::spectrum(&sol, &pipeline::spectrum(&model, &sol)),
+            "spectrum" => report::figure::spectrum(
+                &sol,
+                &pipeline::spectrum(&model, &sol),
+                plan.spectrum_axis,
+                plan.measured.clone(),
+            ),
             kind => report::figure::states(&model, &sol, kind == "density"),
         };
         plan.render(&fig)?;

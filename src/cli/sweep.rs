@@ -8,7 +8,9 @@ use chainwell::input::Document;
 use chainwell::report;
 use chainwell::study::cases::{CaseError, CaseGrid, Shard, Vary};
 use chainwell::study::checkpoint::{self, Saver};
+use chainwell::study::data::Data;
 use chainwell::study::merge;
+use chainwell::study::quantity::Quantity;
 use chainwell::study::runner::Runner;
 use chainwell::study::sweep::{self, SweepError, SweepResult, SweepRow, SweepSpec};
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
@@ -42,9 +44,64 @@ pub struct SweepArgs {
     /// Continue the interrupted sweep saved in FILE (and keep saving to it).
     #[arg(long, value_name = "FILE")]
     pub resume: Option<PathBuf>,
+    /// Measured values to draw on the figure: a CSV like fit data (the
+    /// varied key, one quantity, optional uncertainty).
+    #[arg(long, value_name = "FILE")]
+    pub data: Option<PathBuf>,
     /// Figure options (see `chainwell solve --help`).
     #[command(flatten)]
     pub plot: FigureArgs,
+}
+
+/// The figure kind that shows the quantity of measured data.
+fn kind_for(q: Quantity) -> &'static str {
+    match q {
+        Quantity::Gap => "gap",
+        Quantity::WavelengthNm => "wavelength",
+        _ => "levels",
+    }
+}
+
+/// Reads `--data` and checks it against the figure and the varied key,
+/// before any case runs; the figure kind follows the data's quantity
+/// unless `--figure` names one.
+fn measured(
+    args: &SweepArgs,
+    figure: &mut Option<super::figure::FigurePlan>,
+    varies: &[Vary],
+) -> Result<Option<Data>, CommandError> {
+    let Some(path) = &args.data else {
+        return Ok(None);
+    };
+    let Some(plan) = figure.as_mut() else {
+        return Err(CommandError::Usage(format!(
+            "--data {}: measured values are drawn on the figure; add --plot FILE",
+            path.display()
+        )));
+    };
+    let data = Data::read(path).map_err(|e| {
+        CommandError::Usage(e.to_string().trim_start_matches("error: ").to_string())
+    })?;
+    let key = varies.first().map(|v| v.key.as_str()).unwrap_or_default();
+    if data.key != key {
+        return Err(CommandError::Usage(format!(
+            "--data {}: its key column is {}, the figure's x axis is {key}",
+            path.display(),
+            data.key
+        )));
+    }
+    let want = kind_for(data.quantity);
+    if args.plot.figure.is_none() {
+        plan.kind = want;
+    } else if plan.kind != want {
+        return Err(CommandError::Usage(format!(
+            "--data {}: it holds {}, drawn on --figure {want}, not {}",
+            path.display(),
+            data.quantity.name(),
+            plan.kind
+        )));
+    }
+    Ok(Some(data))
 }
 
 /// Seconds between progress saves.
@@ -127,7 +184,7 @@ pub fn write_csv(result: &SweepResult, csv: Option<&Path>) -> Result<(), Command
 /// Runs `chainwell sweep`.
 pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
     let overrides = parse_overrides(&args.set)?;
-    let figure = args.plot.check(&["levels", "gap", "wavelength"])?;
+    let mut figure = args.plot.check(&["levels", "gap", "wavelength"])?;
     if args.vary.is_empty() {
         return Err(CommandError::Usage(
             "sweep needs at least one --vary KEY=START:STOP[:STEP] or --vary KEY=V1,V2,...".into(),
@@ -140,6 +197,7 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
         .map(|v| Vary::parse(v))
         .collect::<Result<Vec<_>, _>>()
         .map_err(usage)?;
+    let data = measured(&args, &mut figure, &varies)?;
     let grid = CaseGrid::new(varies).map_err(usage)?;
     let shard = args
         .shard
@@ -253,7 +311,7 @@ pub fn run(args: SweepArgs) -> Result<Outcome, CommandError> {
     write_csv(&result, args.csv.as_deref())?;
     if let Some(plan) = &figure {
         if !result.rows.is_empty() {
-            plan.render(&report::figure::sweep(&result, plan.kind))?;
+            plan.render(&report::figure::sweep(&result, plan.kind, data.as_ref()))?;
         }
     }
     let failure = (!result.complete).then(|| {

@@ -48,15 +48,21 @@ pub fn aligned_steps(
     multiple: usize,
 ) -> Option<usize> {
     let multiple = multiple.max(1);
-    let start = wanted.div_ceil(multiple) * multiple;
-    let stop = ((wanted as f64) * (1.0 + SEARCH_SLACK)).ceil() as usize + multiple;
+    // Step counts near usize::MAX (a huge domain at a fine spacing) cannot
+    // be searched; the caller's limits refuse such grids.
+    let start = wanted.div_ceil(multiple).checked_mul(multiple)?;
+    let above = (wanted as f64) * (1.0 + SEARCH_SLACK);
+    if !(above < usize::MAX as f64) {
+        return None;
+    }
+    let stop = (above.ceil() as usize).checked_add(multiple)?;
     let mut m = start;
     let mut tries = 0;
     while m <= stop && tries < 200_000 {
         if is_aligned(domain, edges, m / multiple) {
             return Some(m);
         }
-        m += multiple;
+        m = m.checked_add(multiple)?;
         tries += 1;
     }
     None
@@ -84,6 +90,14 @@ mod tests {
         assert!((2001..2201).contains(&m));
         assert!(is_aligned(&d(), &edges, m / 2));
         assert!(is_aligned(&d(), &edges, m / 4));
+    }
+
+    #[test]
+    fn huge_step_counts_find_nothing_and_do_not_overflow() {
+        let edges = [1.0];
+        assert!(aligned_steps(&d(), &edges, usize::MAX, 4).is_none());
+        assert!(aligned_steps(&d(), &edges, usize::MAX - 3, 4).is_none());
+        assert!(aligned_steps(&d(), &edges, usize::MAX / 2, 4).is_none());
     }
 
     #[test]

@@ -354,13 +354,90 @@ pub(super) fn outline<DB: DrawingBackend>(
     .map_err(draw_err)
 }
 
-/// An axis title: `name (unit)`, or just `name` when the unit is empty.
+/// An axis title: `name (unit)` with the unit as its symbol
+/// ([`super::unit_symbol`]), or just `name` when the unit is empty.
 pub(super) fn titled(name: &str, unit: &str) -> String {
-    if unit.trim().is_empty() {
-        name.to_string()
-    } else {
-        format!("{name} ({unit})")
+    super::titles::with_unit(name, unit)
+}
+
+/// The sample drawn beside a legend entry.
+#[derive(Debug, Clone, Copy)]
+pub(super) enum Swatch {
+    /// A filled circle of radius `r` pixels.
+    Dot(RGBColor, i32),
+    /// A filled triangle of size `r`.
+    Triangle(RGBColor, i32),
+    /// An open square of half side `r`, stroked `w` pixels.
+    Square(RGBColor, i32, u32),
+    /// A short line, `w` pixels wide.
+    Line(RGBColor, u32),
+}
+
+/// An open square of half side `r` centred on pixel `c`.
+pub(super) fn square(c: (i32, i32), r: i32, colour: RGBColor, w: u32) -> PathElement<(i32, i32)> {
+    let (x, y) = c;
+    PathElement::new(
+        vec![
+            (x - r, y - r),
+            (x + r, y - r),
+            (x + r, y + r),
+            (x - r, y + r),
+            (x - r, y - r),
+        ],
+        colour.stroke_width(w),
+    )
+}
+
+/// Draws a one-line legend whose last entry ends at pixel `right` of
+/// `area`, centred on row `y`: each entry its swatch then its words,
+/// entries laid out from right to left.
+pub(super) fn legend<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    px: &Px,
+    style: &Style,
+    (right, y): (i32, i32),
+    entries: &[(Swatch, &str)],
+) -> Result<(), PlotError> {
+    use plotters::style::text_anchor::{HPos, Pos, VPos};
+    let font = text(px, style, 0.9).pos(Pos::new(HPos::Left, VPos::Center));
+    let mut x = right;
+    for (swatch, words) in entries.iter().rev() {
+        let w = area
+            .estimate_text_size(words, &font)
+            .map(|(w, _)| w as i32)
+            .unwrap_or((px.font * 3.0) as i32);
+        x -= w;
+        area.draw(&Text::new(words.to_string(), (x, y), font.clone()))
+            .map_err(draw_err)?;
+        x -= px.pt(4.0);
+        match *swatch {
+            Swatch::Dot(c, r) => {
+                area.draw(&Circle::new((x - r, y), r, c.filled()))
+                    .map_err(draw_err)?;
+                x -= 2 * r;
+            }
+            Swatch::Triangle(c, r) => {
+                area.draw(&TriangleMarker::new((x - r, y), r + 1, c.filled()))
+                    .map_err(draw_err)?;
+                x -= 2 * r;
+            }
+            Swatch::Square(c, r, w) => {
+                area.draw(&square((x - r, y), r, c, w)).map_err(draw_err)?;
+                x -= 2 * r;
+            }
+            Swatch::Line(c, w) => {
+                let len = px.pt(14.0);
+                area.draw(&PathElement::new(
+                    vec![(x - len, y), (x, y)],
+                    c.stroke_width(w),
+                ))
+                .map_err(draw_err)?;
+                x -= len;
+            }
+        }
+        x -= px.pt(12.0);
     }
+    Ok(())
 }
 
 /// A plain linear chart type used by most figures.

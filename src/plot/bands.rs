@@ -156,8 +156,8 @@ pub(super) fn draw<DB: DrawingBackend>(
         &mut chart,
         px,
         style,
-        &titled("k", &fig.k_unit),
-        &titled("energy", &fig.energy_unit),
+        &titled("wave vector k", &fig.k_unit),
+        &titled("energy E", &fig.energy_unit),
         true,
     )?;
     for (j, e) in fig.bands.iter().enumerate() {

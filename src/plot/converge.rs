@@ -309,6 +309,69 @@ pub(super) fn draw<DB: DrawingBackend>(
         px,
     )?;
 
+    // Data first, so the slope label can keep clear of it.
+    let r = px.pt(2.6);
+    let mut drawn: Vec<(i32, i32)> = Vec::new();
+    for (j, s) in fig.series.iter().enumerate() {
+        let look = Look::of(j, style);
+        let colour = look.colour;
+        let mut pts: Vec<Pt> = fig
+            .h
+            .iter()
+            .copied()
+            .zip(s.error.iter().copied())
+            .filter(|p| p.1 > 0.0)
+            .collect();
+        pts.sort_by(|a, c| a.0.total_cmp(&c.0));
+        let st = colour.stroke_width(px.line);
+        for piece in clip_log(&pts, &b) {
+            for w in piece.windows(2) {
+                let (a, c) = (chart.backend_coord(&w[0]), chart.backend_coord(&w[1]));
+                for k in 0..=8 {
+                    let t = f64::from(k) / 8.0;
+                    drawn.push((
+                        a.0 + (f64::from(c.0 - a.0) * t) as i32,
+                        a.1 + (f64::from(c.1 - a.1) * t) as i32,
+                    ));
+                }
+            }
+            match look.dash {
+                Some((on, off)) => chart
+                    .draw_series(DashedLineSeries::new(piece, px.pt(on), px.pt(off), st))
+                    .map(|_| ()),
+                None => chart
+                    .draw_series(std::iter::once(PathElement::new(piece, st)))
+                    .map(|_| ()),
+            }
+            .map_err(draw_err)?;
+        }
+        for p in pts.into_iter().filter(|p| b.contains(*p)) {
+            let c = chart.backend_coord(&p);
+            drawn.push(c);
+            marker(root, c, look.marker, r, colour)?;
+        }
+        let w = px.pt(16.0);
+        let (marker_kind, dash) = (look.marker, look.dash);
+        chart
+            .draw_series(std::iter::empty::<Circle<(f64, f64), i32>>())
+            .map_err(draw_err)?
+            .label(s.label.clone())
+            .legend(move |(x, y)| {
+                // Three pieces: joined for a solid line, apart for a dashed one.
+                let gap = if dash.is_some() { w / 10 } else { 0 };
+                let third = w / 3;
+                let seg = |i: i32| {
+                    let a = -w / 2 + i * third;
+                    PathElement::new(vec![(a + gap / 2, 0), (a + third - gap / 2, 0)], st)
+                };
+                EmptyElement::at((x, y))
+                    + seg(0)
+                    + seg(1)
+                    + seg(2)
+                    + Polygon::new(marker_shape((0, 0), marker_kind, r), colour.filled())
+            });
+    }
+
     if let Some(line) = reference {
         let ink = style.ink.rgb().stroke_width(px.thin);
         for piece in clip_log(&line, &b) {
@@ -320,60 +383,172 @@ pub(super) fn draw<DB: DrawingBackend>(
                     ink,
                 ))
                 .map_err(draw_err)?;
-            let mid = (
-                (piece[0].0 * piece[piece.len() - 1].0).sqrt(),
-                (piece[0].1 * piece[piece.len() - 1].1).sqrt(),
+            let ends = (
+                chart.backend_coord(&piece[0]),
+                chart.backend_coord(&piece[piece.len() - 1]),
             );
-            let (x, y) = chart.backend_coord(&mid);
-            let st = text(px, style, 0.9).pos(Pos::new(HPos::Left, VPos::Top));
-            root.draw(&Text::new(
-                format!("slope {}", nice(fig.order)),
-                (x + px.pt(3.0), y + (px.font * 0.6) as i32),
-                st,
-            ))
-            .map_err(draw_err)?;
+            let label = format!("slope {}", nice(fig.order));
+            let area = chart.plotting_area().get_pixel_range();
+            let (pos, anchor) = slope_place(root, &label, ends, &drawn, area, style, px);
+            root.draw(&Text::new(label, pos, text(px, style, 0.9).pos(anchor)))
+                .map_err(draw_err)?;
         }
     }
 
-    let r = px.pt(2.6);
-    for (j, s) in fig.series.iter().enumerate() {
-        let colour = style.series(j).rgb();
-        let mut pts: Vec<Pt> = fig
-            .h
-            .iter()
-            .copied()
-            .zip(s.error.iter().copied())
-            .filter(|p| p.1 > 0.0)
-            .collect();
-        pts.sort_by(|a, c| a.0.total_cmp(&c.0));
-        let st = colour.stroke_width(px.line);
-        for piece in clip_log(&pts, &b) {
-            chart
-                .draw_series(std::iter::once(PathElement::new(piece, st)))
-                .map_err(draw_err)?;
-        }
-        let w = px.pt(14.0);
-        chart
-            .draw_series(
-                pts.into_iter()
-                    .filter(|p| b.contains(*p))
-                    .map(|p| Circle::new(p, r, colour.filled())),
-            )
-            .map_err(draw_err)?
-            .label(s.label.clone())
-            .legend(move |(x, y)| PathElement::new(vec![(x - w / 2, y), (x + w / 2, y)], st));
-    }
     chart
         .configure_series_labels()
         .position(SeriesLabelPosition::LowerRight)
         .margin(px.pt(6.0))
-        .legend_area_size(px.pt(16.0))
+        .legend_area_size(px.pt(22.0))
         .label_font(text(px, style, 0.9))
         .border_style(style.ink.rgb().stroke_width(px.thin))
         .background_style(WHITE)
         .draw()
         .map_err(draw_err)?;
     Ok(())
+}
+
+/// Marker shapes, in the order they are used.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Marker {
+    Circle,
+    Triangle,
+    Square,
+    Diamond,
+}
+
+const MARKERS: [Marker; 4] = [
+    Marker::Circle,
+    Marker::Triangle,
+    Marker::Square,
+    Marker::Diamond,
+];
+
+/// Dash patterns (on, off) in points, in the order they are used; `None`
+/// is solid.
+const DASHES: [Option<(f64, f64)>; 3] = [None, Some((5.0, 3.0)), Some((1.5, 2.0))];
+
+/// How series `j` is drawn: colours cycle fastest, then markers, then
+/// dash patterns, so the first `colours × 4 × 3` series all differ.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct Look {
+    colour: RGBColor,
+    marker: Marker,
+    dash: Option<(f64, f64)>,
+}
+
+impl Look {
+    fn of(j: usize, style: &Style) -> Look {
+        let n = style.palette.len().max(1);
+        Look {
+            colour: style.series(j).rgb(),
+            marker: MARKERS[(j / n) % MARKERS.len()],
+            dash: DASHES[(j / (n * MARKERS.len())) % DASHES.len()],
+        }
+    }
+}
+
+/// The outline of a marker of size `r` about pixel `c` (a circle as a
+/// 16-gon).
+fn marker_shape((x, y): (i32, i32), m: Marker, r: i32) -> Vec<(i32, i32)> {
+    let rf = f64::from(r);
+    let around = |n: usize, turn: f64, scale: f64| -> Vec<(i32, i32)> {
+        (0..n)
+            .map(|k| {
+                let a = turn + std::f64::consts::TAU * k as f64 / n as f64;
+                (
+                    x + (scale * rf * a.cos()).round() as i32,
+                    y + (scale * rf * a.sin()).round() as i32,
+                )
+            })
+            .collect()
+    };
+    match m {
+        Marker::Circle => around(16, 0.0, 1.0),
+        Marker::Triangle => around(3, -std::f64::consts::FRAC_PI_2, 1.3),
+        Marker::Square => around(4, std::f64::consts::FRAC_PI_4, 1.25),
+        Marker::Diamond => around(4, 0.0, 1.35),
+    }
+}
+
+/// Draws one marker at pixel `c`.
+fn marker<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    c: (i32, i32),
+    m: Marker,
+    r: i32,
+    colour: RGBColor,
+) -> Result<(), PlotError> {
+    match m {
+        Marker::Circle => root.draw(&Circle::new(c, r, colour.filled())),
+        _ => root.draw(&Polygon::new(marker_shape(c, m, r), colour.filled())),
+    }
+    .map_err(draw_err)
+}
+
+/// Where the slope label goes: of a few places beside the reference line
+/// (near either end or the middle, above or below it), the one inside the
+/// plot whose box stays farthest from the drawn data.
+fn slope_place<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    label: &str,
+    (a, c): ((i32, i32), (i32, i32)),
+    drawn: &[(i32, i32)],
+    (xs, ys): (std::ops::Range<i32>, std::ops::Range<i32>),
+    style: &Style,
+    px: &Px,
+) -> ((i32, i32), Pos) {
+    let font = text(px, style, 0.9);
+    let (w, h) = root
+        .estimate_text_size(label, &font)
+        .map(|(w, h)| (w as i32, h as i32))
+        .unwrap_or(((px.font * 4.0) as i32, px.font as i32));
+    let gap = (px.font * 0.5) as i32;
+    let mut best: Option<(f64, (i32, i32), Pos)> = None;
+    for t in [0.2, 0.5, 0.8] {
+        let p = (
+            a.0 + (f64::from(c.0 - a.0) * t) as i32,
+            a.1 + (f64::from(c.1 - a.1) * t) as i32,
+        );
+        for below in [true, false] {
+            // The box's top-left corner and the anchor that puts it there.
+            let (top, pos, anchor) = if below {
+                (
+                    p.1 + gap,
+                    (p.0 + gap, p.1 + gap),
+                    Pos::new(HPos::Left, VPos::Top),
+                )
+            } else {
+                (
+                    p.1 - gap - h,
+                    (p.0 - gap, p.1 - gap),
+                    Pos::new(HPos::Right, VPos::Bottom),
+                )
+            };
+            let left = if below { p.0 + gap } else { p.0 - gap - w };
+            if left < xs.start || left + w > xs.end || top < ys.start || top + h > ys.end {
+                continue;
+            }
+            let clear = drawn
+                .iter()
+                .map(|&(x, y)| {
+                    let dx = (left - x).max(x - (left + w)).max(0);
+                    let dy = (top - y).max(y - (top + h)).max(0);
+                    f64::from(dx).hypot(f64::from(dy))
+                })
+                .fold(f64::INFINITY, f64::min);
+            if best.as_ref().is_none_or(|b| clear > b.0) {
+                best = Some((clear, pos, anchor));
+            }
+        }
+    }
+    match best {
+        Some((_, pos, anchor)) => (pos, anchor),
+        None => {
+            let mid = ((a.0 + c.0) / 2, (a.1 + c.1) / 2);
+            ((mid.0 + gap, mid.1 + gap), Pos::new(HPos::Left, VPos::Top))
+        }
+    }
 }
 
 #[cfg(test)]
@@ -432,9 +607,38 @@ mod tests {
         for j in 0..3 {
             let c = style.series(j).hex();
             assert_eq!(count(&svg, "circle", "fill", &c), 5);
-            // One data line plus its legend swatch.
-            assert_eq!(stroked(&svg, &c).len(), 2);
+            // One data line plus its legend swatch in three pieces.
+            assert_eq!(stroked(&svg, &c).len(), 4);
         }
+    }
+
+    #[test]
+    fn many_series_stay_distinct() {
+        // 30 levels: no two share colour, marker and dash.
+        let style = Style::default();
+        let looks: Vec<Look> = (0..30).map(|j| Look::of(j, &style)).collect();
+        for i in 0..looks.len() {
+            for j in 0..i {
+                assert_ne!(looks[i], looks[j], "series {j} and {i}");
+            }
+        }
+        // n = 1 and n = 7 share a colour but not a marker.
+        assert_eq!(looks[0].colour, looks[6].colour);
+        assert_ne!(looks[0].marker, looks[6].marker);
+        let h: Vec<f64> = vec![0.4, 0.2, 0.1, 0.05];
+        let series = (1..=14)
+            .map(|n| ErrorSeries {
+                label: format!("n = {n}"),
+                error: h.iter().map(|h| 0.01 * f64::from(n) * h * h).collect(),
+            })
+            .collect();
+        let svg = render_both(
+            &Figure::Converge(ConvergeFigure::new(h, series, 2.0)),
+            &style,
+            "converge_many",
+        );
+        // Series 7..12 draw triangles, squares or diamonds as polygons.
+        assert!(svg.matches("<polygon").count() >= 4 * 8);
     }
 
     #[test]

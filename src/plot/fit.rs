@@ -1,16 +1,21 @@
 //! Fit figure: observed values (with optional one-standard-uncertainty
 //! error bars) against a fitted model, and below it a smaller panel of the
-//! residuals `r_i = observed_i - model_i` on the same x axis, the usual
-//! way to judge a least-squares fit (P. R. Bevington and D. K. Robinson,
-//! Data Reduction and Error Analysis for the Physical Sciences, 3rd ed.,
-//! Ch. 6 and 11).
+//! residuals on the same x axis, the usual way to judge a least-squares
+//! fit (P. R. Bevington and D. K. Robinson, Data Reduction and Error
+//! Analysis for the Physical Sciences, 3rd ed., Ch. 6 and 11). The
+//! residual is `model_i - observed_i`, the sign of `rows[].residual` in
+//! the fit document and its table.
 //!
-//! The model is drawn as a line through its values at the observed x,
-//! sorted by x. The residual panel takes [`RESIDUAL_SHARE`] of the height.
+//! The model is drawn as a continuous curve through its values evaluated
+//! over the whole range ([`FitFigure::curve`]), or, without them, as a line
+//! through its values at the observed x. A key above the upper panel
+//! names the observed points and the model line. The residual panel takes
+//! [`RESIDUAL_SHARE`] of the height.
 
 use super::axes::{
     axis_range, bounds_of, check, check_finite, check_len, dashes, draw_err, extent, frame,
-    label_areas, pad, polyline, titled, usable, y_area, y_ticks, Bounds, Linear, Pt,
+    label_areas, legend, pad, polyline, titled, usable, y_area, y_ticks, Bounds, Linear, Pt,
+    Swatch,
 };
 use super::style::{Px, Rgb};
 use super::{PlotError, Style};
@@ -34,6 +39,9 @@ pub struct FitFigure {
     pub uncertainty: Option<Vec<f64>>,
     /// Model values at `x`, in `y_unit`.
     pub model: Vec<f64>,
+    /// The model evaluated between the data as well, `(x, model)` in any
+    /// order; empty draws the model through `model` at `x` only.
+    pub curve: Vec<(f64, f64)>,
     /// Name of x for the axis title.
     pub x_name: String,
     /// Unit of x (may be empty).
@@ -52,6 +60,9 @@ impl FitFigure {
         check_finite("observed", &self.observed)?;
         check_len("model", self.x.len(), self.model.len())?;
         check_finite("model", &self.model)?;
+        let (cx, cy): (Vec<f64>, Vec<f64>) = self.curve.iter().copied().unzip();
+        check_finite("model curve x", &cx)?;
+        check_finite("model curve", &cy)?;
         if let Some(u) = &self.uncertainty {
             check_len("uncertainty", self.x.len(), u.len())?;
             check_finite("uncertainty", u)?;
@@ -121,8 +132,25 @@ pub(super) fn draw<DB: DrawingBackend>(
         let hi = (fig.observed[i] + s).max(fig.model[i]);
         (lo, hi)
     });
+    // The curve between the data may reach beyond the points.
+    let top = match extent(
+        fig.curve
+            .iter()
+            .filter(|(x, _)| *x >= x0 && *x <= x1)
+            .map(|(_, y)| *y),
+    ) {
+        Some((lo, hi)) if !idx.is_empty() => {
+            let (a, b) = (top.0.min(lo), top.1.max(hi));
+            if a < top.0 || b > top.1 {
+                pad((a, b), 0.04)
+            } else {
+                top
+            }
+        }
+        _ => top,
+    };
     let res = span(&|i| {
-        let r = fig.observed[i] - fig.model[i];
+        let r = fig.model[i] - fig.observed[i];
         let s = fig.sigma(i);
         (r - s, r + s)
     });
@@ -144,9 +172,9 @@ pub(super) fn draw<DB: DrawingBackend>(
     let r = px.pt(2.6);
     let cap = 0.006 * (x1 - x0);
 
-    // Upper panel.
+    // Upper panel, with room above it for the key.
     let mut chart = ChartBuilder::on(&upper)
-        .margin_top(m)
+        .margin_top((px.font * 1.8) as u32)
         .margin_left(m)
         .margin_right(m)
         .x_label_area_size(px.pt(4.0))
@@ -162,7 +190,11 @@ pub(super) fn draw<DB: DrawingBackend>(
         false,
     )?;
     let b = bounds_of((x0, x1), top);
-    let mut model: Vec<Pt> = fig.x.iter().copied().zip(fig.model.clone()).collect();
+    let mut model: Vec<Pt> = if fig.curve.len() >= 2 {
+        fig.curve.clone()
+    } else {
+        fig.x.iter().copied().zip(fig.model.clone()).collect()
+    };
     model.sort_by(|a, c| a.0.total_cmp(&c.0));
     polyline(
         &mut chart,
@@ -182,6 +214,7 @@ pub(super) fn draw<DB: DrawingBackend>(
                 .map(|p| Circle::new(p, r, point.filled())),
         )
         .map_err(draw_err)?;
+    key(&upper, &chart, style, px, r)?;
 
     // Residual panel.
     let mut chart = ChartBuilder::on(&lower)
@@ -198,7 +231,7 @@ pub(super) fn draw<DB: DrawingBackend>(
         px,
         style,
         &titled(&fig.x_name, &fig.x_unit),
-        &titled("residual", &fig.y_unit),
+        &titled("model − obs.", &fig.y_unit),
         true,
     )?;
     let b = bounds_of((x0, x1), res);
@@ -208,18 +241,42 @@ pub(super) fn draw<DB: DrawingBackend>(
         polyline(&mut chart, &d, &b, zero)?;
     }
     for &i in &idx {
-        let p = (fig.x[i], fig.observed[i] - fig.model[i], fig.sigma(i));
+        let p = (fig.x[i], fig.model[i] - fig.observed[i], fig.sigma(i));
         bar(&mut chart, p, cap, &b, point.stroke_width(px.thin))?;
     }
     chart
         .draw_series(
             idx.iter()
-                .map(|&i| (fig.x[i], fig.observed[i] - fig.model[i]))
+                .map(|&i| (fig.x[i], fig.model[i] - fig.observed[i]))
                 .filter(|p| b.contains(*p))
                 .map(|p| Circle::new(p, r, point.filled())),
         )
         .map_err(draw_err)?;
     Ok(())
+}
+
+/// The key above the upper panel's top right corner: a point for the
+/// observed values, a line for the model.
+fn key<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    chart: &Linear<'_, DB>,
+    style: &Style,
+    px: &Px,
+    r: i32,
+) -> Result<(), PlotError> {
+    let (xs, ys) = chart.plotting_area().get_pixel_range();
+    let (ax, ay) = area.get_base_pixel();
+    let y = ys.start - ay - (px.font * 0.8) as i32;
+    legend(
+        area,
+        px,
+        style,
+        (xs.end - ax, y),
+        &[
+            (Swatch::Dot(style.series(0).rgb(), r), "observed"),
+            (Swatch::Line(style.series(1).rgb(), px.line), "model"),
+        ],
+    )
 }
 
 #[cfg(test)]
@@ -234,6 +291,10 @@ pub(super) fn sample() -> FitFigure {
         observed,
         uncertainty: Some(vec![0.05; 8]),
         model,
+        curve: (0..=70)
+            .map(|i| 2.0 + 0.1 * f64::from(i))
+            .map(|n| (n, 1.5 + 6.0 / n))
+            .collect(),
         x_name: "chain length N".into(),
         x_unit: String::new(),
         y_name: "gap".into(),
@@ -252,12 +313,12 @@ mod tests {
         let style = Style::default();
         let svg = render_both(&Figure::Fit(sample()), &style, "fit");
         let c = style.series(0).hex();
-        // 8 observed + 8 residual points.
-        assert_eq!(count(&svg, "circle", "fill", &c), 16);
+        // 8 observed + 8 residual points, one in the key.
+        assert_eq!(count(&svg, "circle", "fill", &c), 17);
         // 8 error bars in each panel.
         assert_eq!(stroked(&svg, &c).len(), 16);
-        // One model line.
-        assert_eq!(stroked(&svg, &style.series(1).hex()).len(), 1);
+        // One model curve and its sample in the key.
+        assert_eq!(stroked(&svg, &style.series(1).hex()).len(), 2);
     }
 
     #[test]
@@ -269,8 +330,8 @@ mod tests {
             ..Style::default()
         };
         let svg = render_both(&Figure::Fit(f), &style, "fit_window");
-        // N = 4..9 inside: 6 points per panel, no bars.
-        assert_eq!(count(&svg, "circle", "fill", &style.series(0).hex()), 12);
+        // N = 4..9 inside: 6 points per panel and the key's, no bars.
+        assert_eq!(count(&svg, "circle", "fill", &style.series(0).hex()), 13);
         assert_eq!(stroked(&svg, &style.series(0).hex()).len(), 0);
     }
 

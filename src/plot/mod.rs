@@ -1,4 +1,4 @@
-//! Publication figures for chainwell results, written as SVG or PNG.
+//! Publication figures for chainwell results, written as SVG, PNG or PDF.
 //!
 //! Six figure kinds, each a plain data struct filled by the caller:
 //!
@@ -12,8 +12,12 @@
 //! | [`ConvergeFigure`] | absolute error against grid spacing on log-log axes with a reference slope |
 //!
 //! [`render`] draws a [`Figure`] with a [`Style`] and writes it atomically
-//! ([`write_atomic`]); the format follows the file extension. The embedded
-//! DejaVu Sans face is used for all text, so no system font is needed.
+//! ([`write_atomic`]); the format follows the file extension
+//! ([`Format::from_path`]). A figure is drawn once into a recorded scene
+//! (plotters on a backend of our own), then written: SVG with every label
+//! as glyph outlines, PNG antialiased by `tiny-skia`, PDF with the font
+//! embedded. The shipped DejaVu Sans face is used for all text, so no
+//! system font is needed, and every format shows the same layout.
 //!
 //! All data are clipped to the axis box before drawing. Non-finite values,
 //! empty data, mismatched lengths and windows holding no data are reported
@@ -29,21 +33,28 @@ mod converge;
 mod file;
 mod fit;
 mod font;
+mod pdf;
+mod raster;
 mod render;
+mod scene;
 mod spectrum;
 mod states;
 mod style;
+mod subset;
+mod svg;
 mod sweep;
+mod titles;
 
 pub use bands::{BandsFigure, ChainLadder, LADDER_SHARE};
 pub use converge::{ConvergeFigure, ErrorSeries, REFERENCE_OFFSET};
 pub use file::write_atomic;
 pub use fit::{FitFigure, RESIDUAL_SHARE};
-pub use render::{check, render, render_png, render_svg};
-pub use spectrum::{SpectrumFigure, Stick};
+pub use render::{check, label_boxes, render, render_pdf, render_png, render_svg, Format};
+pub use spectrum::{MeasuredSpectrum, SpectrumAxis, SpectrumFigure, Stick};
 pub use states::{StateLevel, StatesFigure, WAVE_FRACTION};
 pub use style::{Rgb, Size, Style, LEVEL_INK, MAX_PIXELS, OKABE_ITO, SCREEN_DPI, SERIES_ORDER};
-pub use sweep::{SweepCase, SweepData, SweepFigure};
+pub use sweep::{Measured, SweepCase, SweepData, SweepFigure};
+pub use titles::{key_title, quantity_parts, quantity_title, unit_symbol, with_unit};
 
 use std::path::PathBuf;
 
@@ -67,8 +78,8 @@ pub enum Figure {
 /// Errors of the plot module.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum PlotError {
-    /// The file extension is neither `.svg` nor `.png` (case-insensitive).
-    #[error("unknown figure format for {0:?}: use .svg or .png")]
+    /// The file extension is not `.svg`, `.png` or `.pdf` (any case).
+    #[error("unknown figure format for {0:?}: use .svg, .png or .pdf")]
     UnknownFormat(PathBuf),
     /// A required data array is empty.
     #[error("no data: {0} is empty")]

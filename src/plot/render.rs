@@ -1,30 +1,40 @@
-//! Backends: SVG into a string, PNG through an in-memory RGB buffer, and
-//! the dispatch from [`Figure`] to the figure kinds.
+//! The dispatch from [`Figure`] to the figure kinds, drawn once into a
+//! recording [`Scene`], then written as SVG, PNG or PDF.
 
 use super::axes::draw_err;
 use super::file::write_atomic;
+use super::scene::{Recorder, Scene};
 use super::style::Px;
-use super::{bands, converge, fit, font, spectrum, states, sweep};
+use super::{bands, converge, fit, font, pdf, raster, spectrum, states, svg, sweep};
 use super::{Figure, PlotError, Style};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::Path;
 
-/// Output formats.
+/// The file formats chainwell writes figures in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Format {
+pub enum Format {
+    /// Scalable vector graphics, text as glyph outlines (no font named).
     Svg,
+    /// Antialiased 8-bit RGB raster at the style's size.
     Png,
+    /// One-page PDF, vector, with the font embedded.
+    Pdf,
 }
 
-fn format_of(path: &Path) -> Result<Format, PlotError> {
-    let ext = path
-        .extension()
-        .map(|e| e.to_string_lossy().to_ascii_lowercase());
-    match ext.as_deref() {
-        Some("svg") => Ok(Format::Svg),
-        Some("png") => Ok(Format::Png),
-        _ => Err(PlotError::UnknownFormat(path.to_path_buf())),
+impl Format {
+    /// The format named by the file extension (`.svg`, `.png`, `.pdf`, any
+    /// case); anything else is [`PlotError::UnknownFormat`].
+    pub fn from_path(path: &Path) -> Result<Format, PlotError> {
+        let ext = path
+            .extension()
+            .map(|e| e.to_string_lossy().to_ascii_lowercase());
+        match ext.as_deref() {
+            Some("svg") => Ok(Format::Svg),
+            Some("png") => Ok(Format::Png),
+            Some("pdf") => Ok(Format::Pdf),
+            _ => Err(PlotError::UnknownFormat(path.to_path_buf())),
+        }
     }
 }
 
@@ -58,61 +68,72 @@ fn draw_on<DB: DrawingBackend>(
     root.present().map_err(draw_err)
 }
 
-/// Draws the figure as an SVG document (text in the embedded font's family
-/// name, `sans-serif`).
-pub fn render_svg(figure: &Figure, style: &Style) -> Result<String, PlotError> {
-    let mut px = Px::new(style)?;
-    px.font *= font::SVG_RATIO;
+/// Draws the figure into a recorded scene, with the resolution in dpi.
+pub(super) fn scene(figure: &Figure, style: &Style) -> Result<(Scene, f64), PlotError> {
+    let px = Px::new(style)?;
     validate(figure, style)?;
-    font::ensure()?;
-    let mut out = String::new();
+    let face = font::face()?;
+    let dpi = style.size.pixels()?.2;
+    let mut sc = Scene::new(px.w, px.h, face);
     {
-        let root = SVGBackend::with_string(&mut out, (px.w, px.h)).into_drawing_area();
+        let root = Recorder(&mut sc).into_drawing_area();
         draw_on(&root, figure, style, &px)?;
     }
-    Ok(out)
+    Ok((sc, dpi))
 }
 
-/// Draws the figure into an 8-bit RGB raster and encodes it as PNG bytes.
+/// Draws the figure as an SVG document, text as glyph outlines.
+pub fn render_svg(figure: &Figure, style: &Style) -> Result<String, PlotError> {
+    let (sc, _) = scene(figure, style)?;
+    Ok(svg::write(&sc))
+}
+
+/// Draws the figure antialiased and encodes it as PNG bytes.
 pub fn render_png(figure: &Figure, style: &Style) -> Result<Vec<u8>, PlotError> {
-    use image::ImageEncoder;
-    let mut px = Px::new(style)?;
-    px.font *= font::EM_RATIO;
-    validate(figure, style)?;
-    font::ensure()?;
-    let mut buf = vec![255u8; px.w as usize * px.h as usize * 3];
-    {
-        let backend = BitMapBackend::<plotters::backend::RGBPixel>::with_buffer_and_format(
-            &mut buf,
-            (px.w, px.h),
-        )
-        .map_err(|e| PlotError::Draw(e.to_string()))?;
-        let root = backend.into_drawing_area();
-        draw_on(&root, figure, style, &px)?;
-    }
-    let mut png = Vec::new();
-    image::codecs::png::PngEncoder::new(&mut png)
-        .write_image(&buf, px.w, px.h, image::ColorType::Rgb8)
-        .map_err(|e| PlotError::Encode(e.to_string()))?;
-    Ok(png)
+    let (sc, dpi) = scene(figure, style)?;
+    let rgb = raster::pixels(&sc)?;
+    raster::encode(&rgb, sc.w, sc.h, dpi)
+}
+
+/// Draws the figure as a one-page PDF with the font embedded; the page is
+/// the figure's size at its resolution.
+pub fn render_pdf(figure: &Figure, style: &Style) -> Result<Vec<u8>, PlotError> {
+    let (sc, dpi) = scene(figure, style)?;
+    pdf::write(&sc, dpi)
+}
+
+/// Every label of the drawn figure with the box `[x0, y0, x1, y1]` its
+/// glyphs cover, in pixels from the top left, and the canvas size.
+pub fn label_boxes(
+    figure: &Figure,
+    style: &Style,
+) -> Result<(Vec<(String, [f64; 4])>, (u32, u32)), PlotError> {
+    let (sc, _) = scene(figure, style)?;
+    let boxes = sc
+        .label_boxes()
+        .into_iter()
+        .map(|(t, b)| (t.to_string(), b))
+        .collect();
+    Ok((boxes, (sc.w, sc.h)))
 }
 
 /// Checks, before anything is computed, that `path` names a figure format
 /// chainwell writes and that `style` is usable (size, type size, line
-/// width, windows): the faults [`render`] would otherwise find only after
-/// the work.
+/// width, windows, amplitude): the faults [`render`] would otherwise find
+/// only after the work.
 pub fn check(style: &Style, path: &Path) -> Result<(), PlotError> {
-    format_of(path)?;
-    Px::new(style).map(|_| ())
+    Format::from_path(path)?;
+    style.validate()
 }
 
-/// Draws `figure` with `style` and writes it to `path`, as SVG or PNG by
-/// the extension (`.svg`, `.png`, any case). The file is replaced
-/// atomically; on any error an existing file at `path` is left untouched.
+/// Draws `figure` with `style` and writes it to `path`, as SVG, PNG or
+/// PDF by the extension (any case). The file is replaced atomically; on
+/// any error an existing file at `path` is left untouched.
 pub fn render(figure: &Figure, style: &Style, path: &Path) -> Result<(), PlotError> {
-    let bytes = match format_of(path)? {
+    let bytes = match Format::from_path(path)? {
         Format::Svg => render_svg(figure, style)?.into_bytes(),
         Format::Png => render_png(figure, style)?,
+        Format::Pdf => render_pdf(figure, style)?,
     };
     write_atomic(path, &bytes)
 }
@@ -134,27 +155,26 @@ mod tests {
                 values: y,
             },
             y_unit: "eV".into(),
+            measured: Vec::new(),
         })
     }
 
     #[test]
-    fn svg_font_size_is_requested_size() {
-        // 12 pt at 96 dpi is 16 px (1 pt = 1/72 in).
+    fn svg_names_no_font_and_keeps_label_text() {
         let svg = render_svg(&quantity(vec![1.0, 2.0], vec![1.0, 2.0]), &Style::default()).unwrap();
         let doc = roxmltree::Document::parse(&svg).unwrap();
-        let sizes: Vec<f64> = doc
+        assert!(!svg.contains("font-family") && !svg.contains("<text"));
+        let labels: Vec<&str> = doc
             .descendants()
-            .filter_map(|n| n.attribute("font-size"))
-            .filter_map(|s| s.parse().ok())
+            .filter_map(|n| n.attribute("aria-label"))
             .collect();
-        assert!(!sizes.is_empty());
-        assert!(sizes.iter().any(|s| (s - 16.0).abs() < 1e-9), "{sizes:?}");
+        assert!(labels.contains(&"gap (eV)"), "{labels:?}");
     }
 
     #[test]
     fn failed_render_keeps_old_file() {
         let d = tmpdir("keep");
-        for ext in ["svg", "png"] {
+        for ext in ["svg", "png", "pdf"] {
             let p = d.join(format!("fig.{ext}"));
             std::fs::write(&p, b"old figure").unwrap();
             let bad = quantity(vec![1.0, 2.0], vec![0.5, f64::NAN]);
@@ -170,14 +190,14 @@ mod tests {
             .unwrap()
             .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
             .collect();
-        assert_eq!(names.len(), 2, "{names:?}");
+        assert_eq!(names.len(), 3, "{names:?}");
         let e = render(
             &quantity(vec![1.0], vec![1.0]),
             &Style::default(),
-            &d.join("fig.pdf"),
+            &d.join("fig.eps"),
         );
         assert!(matches!(e, Err(PlotError::UnknownFormat(_))));
-        assert!(!d.join("fig.pdf").exists());
+        assert!(!d.join("fig.eps").exists());
         std::fs::remove_dir_all(&d).unwrap();
     }
 
@@ -248,11 +268,13 @@ mod tests {
 
     #[test]
     fn formats_from_extension() {
-        assert_eq!(format_of(Path::new("a/b.SVG")).unwrap(), Format::Svg);
-        assert_eq!(format_of(Path::new("b.png")).unwrap(), Format::Png);
-        let e = format_of(Path::new("fig.pdf")).unwrap_err();
-        assert_eq!(e, PlotError::UnknownFormat("fig.pdf".into()));
-        assert!(e.to_string().contains("fig.pdf"));
-        assert!(format_of(Path::new("noext")).is_err());
+        let f = |p: &str| Format::from_path(Path::new(p));
+        assert_eq!(f("a/b.SVG").unwrap(), Format::Svg);
+        assert_eq!(f("b.png").unwrap(), Format::Png);
+        assert_eq!(f("c.Pdf").unwrap(), Format::Pdf);
+        let e = f("fig.eps").unwrap_err();
+        assert_eq!(e, PlotError::UnknownFormat("fig.eps".into()));
+        assert!(e.to_string().contains("fig.eps"));
+        assert!(f("noext").is_err());
     }
 }

@@ -3,9 +3,12 @@
 //!
 //! Each shown level is a horizontal line across its classically allowed
 //! region(s) (where E >= V(x)); its wavefunction is drawn about that line,
-//! `E + a psi(x) / max|psi|`, with `a = WAVE_FRACTION * dE_min`, where
-//! `dE_min` is the smallest spacing between neighbouring shown levels, so
-//! neighbouring curves do not reach each other (a textbook way of drawing
+//! `E + a psi(x) / max|psi|`, with `a = f dE` (`f` is
+//! [`Style::amplitude`], default [`WAVE_FRACTION`]), where `dE` is the
+//! level's spacing to its nearer neighbour among the shown levels, so with
+//! `f < 0.5` neighbouring curves do not reach each other, and the widely
+//! spaced upper levels of a box get waves as tall as their room allows
+//! rather than the height the closest pair allows (a textbook way of drawing
 //! stationary states, e.g. D. J. Griffiths, Introduction to Quantum
 //! Mechanics, 2nd ed., Fig. 2.2). With `density = true` the curve is
 //! `E + 2 a rho / max rho`, `rho = psi^2`, which only rises above its line.
@@ -17,7 +20,7 @@
 
 use super::axes::{
     axis_range, bounds_of, check, check_finite, check_len, dashes, draw_err, extent, frame,
-    label_areas, pad, polyline, text, usable, y_area, y_ticks, Linear, Pt,
+    label_areas, pad, polyline, text, titled, usable, y_area, y_ticks, Linear, Pt,
 };
 use super::style::{Px, LEVEL_INK};
 use super::{PlotError, Style};
@@ -25,9 +28,9 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
-/// Fraction of the smallest level spacing used as the wavefunction
-/// amplitude (0.4), so two neighbouring curves use at most 80 % of the
-/// space between their lines.
+/// Default fraction of the smallest level spacing used as the
+/// wavefunction amplitude (0.4), so two neighbouring curves use at most
+/// 80 % of the space between their lines; [`Style::amplitude`] changes it.
 pub const WAVE_FRACTION: f64 = 0.4;
 
 /// One level of a [`StatesFigure`].
@@ -64,6 +67,10 @@ pub struct StatesFigure {
     pub x_unit: String,
     /// Unit of energy for the axis title, e.g. "eV".
     pub energy_unit: String,
+    /// Hard walls at these two positions (x unit), drawn as heavy vertical
+    /// lines rising from the potential to the top of the plot; `None` for
+    /// open or periodic ends.
+    pub walls: Option<(f64, f64)>,
 }
 
 impl StatesFigure {
@@ -76,6 +83,7 @@ impl StatesFigure {
             density: false,
             x_unit: "Å".into(),
             energy_unit: "eV".into(),
+            walls: None,
         }
     }
 
@@ -84,6 +92,9 @@ impl StatesFigure {
         check("x grid", &self.x)?;
         check_len("potential", self.x.len(), self.potential.len())?;
         check_finite("potential", &self.potential)?;
+        if let Some((a, b)) = self.walls {
+            check_finite("walls", &[a, b])?;
+        }
         if self.levels.is_empty() {
             return Err(PlotError::Empty("levels".into()));
         }
@@ -135,24 +146,40 @@ impl StatesFigure {
     }
 }
 
-/// Wavefunction amplitude in energy units (see module docs).
-fn amplitude(shown: &[&StateLevel], v_min: f64) -> f64 {
-    let spacing = shown
-        .windows(2)
-        .map(|w| w[1].energy - w[0].energy)
-        .filter(|d| *d > 0.0)
-        .fold(f64::INFINITY, f64::min);
-    let spacing = if spacing.is_finite() {
-        spacing
-    } else {
-        let d = shown.first().map_or(0.0, |l| l.energy - v_min);
-        if d > 0.0 {
-            d
-        } else {
-            1.0
+/// Wavefunction amplitude of each shown level (sorted by energy) in energy
+/// units: `fraction` of its spacing to the nearer neighbour (see module
+/// docs); a level with no neighbour at a distance uses the distance from
+/// the potential's minimum, or 1 energy unit.
+fn amplitudes(shown: &[&StateLevel], v_min: f64, fraction: f64) -> Vec<f64> {
+    let gap = |i: usize, j: usize| -> f64 {
+        match (shown.get(i), shown.get(j)) {
+            (Some(a), Some(b)) => {
+                let d = (b.energy - a.energy).abs();
+                if d > 0.0 {
+                    d
+                } else {
+                    f64::INFINITY
+                }
+            }
+            _ => f64::INFINITY,
         }
     };
-    WAVE_FRACTION * spacing
+    (0..shown.len())
+        .map(|i| {
+            let near = gap(i, i + 1).min(if i > 0 { gap(i - 1, i) } else { f64::INFINITY });
+            let spacing = if near.is_finite() {
+                near
+            } else {
+                let d = shown[i].energy - v_min;
+                if d > 0.0 {
+                    d
+                } else {
+                    1.0
+                }
+            };
+            fraction * spacing
+        })
+        .collect()
 }
 
 /// The curve drawn for a level: energy plus scaled psi or density.
@@ -196,14 +223,19 @@ pub(super) fn draw<DB: DrawingBackend>(
         .map(|(_, v)| *v)
         .collect();
     let (v_min, _) = extent(v_in.iter().copied()).unwrap_or((0.0, 0.0));
-    let a = amplitude(&shown, v_min);
+    let amps = amplitudes(&shown, v_min, style.amplitude);
     let (y0, y1) = match style.energy_window {
         Some(w) => w,
         None => {
+            let (a_lo, a_hi) = (amps[0], amps[amps.len() - 1]);
             let lo = shown.first().map_or(0.0, |l| l.energy);
             let hi = shown.last().map_or(0.0, |l| l.energy);
-            let top = if fig.density { hi + 2.0 * a } else { hi + a };
-            pad((v_min.min(lo - a), top.max(hi + a)), 0.06)
+            let top = if fig.density {
+                hi + 2.0 * a_hi
+            } else {
+                hi + a_hi
+            };
+            pad((v_min.min(lo - a_lo), top.max(hi + a_hi)), 0.06)
         }
     };
     let (x0, x1) = usable("x", (x0, x1))?;
@@ -227,14 +259,22 @@ pub(super) fn draw<DB: DrawingBackend>(
         &mut chart,
         px,
         style,
-        &format!("position ({})", fig.x_unit),
-        &format!("energy ({})", fig.energy_unit),
+        &titled("position x", &fig.x_unit),
+        &titled("energy E", &fig.energy_unit),
         true,
     )?;
 
-    // Potential.
+    // Potential, and the walls rising from its ends.
     let pot: Vec<Pt> = fig.x.iter().copied().zip(fig.potential.clone()).collect();
-    polyline(&mut chart, &pot, &b, style.ink.rgb().stroke_width(px.heavy))?;
+    let heavy = style.ink.rgb().stroke_width(px.heavy);
+    polyline(&mut chart, &pot, &b, heavy)?;
+    if let Some((wa, wb)) = fig.walls {
+        let first = pot.first().map_or(y0, |p| p.1);
+        let last = pot.last().map_or(y0, |p| p.1);
+        for (x, v) in [(wa, first), (wb, last)] {
+            polyline(&mut chart, &[(x, v.max(y0)), (x, y1)], &b, heavy)?;
+        }
+    }
 
     let level_style = LEVEL_INK.rgb().stroke_width(px.line);
     let mut labels: Vec<(i32, String, u8, RGBColor)> = Vec::new();
@@ -268,7 +308,7 @@ pub(super) fn draw<DB: DrawingBackend>(
         // Wavefunction or density.
         polyline(
             &mut chart,
-            &curve(fig, l, a),
+            &curve(fig, l, amps[i]),
             &b,
             colour.stroke_width(px.line),
         )?;
@@ -363,24 +403,31 @@ mod tests {
     use approx::assert_abs_diff_eq;
 
     #[test]
-    fn amplitude_is_fraction_of_smallest_spacing() {
-        // Levels 0.2, 0.8, 1.8, 3.2: smallest spacing 0.6 (closed form).
+    fn amplitude_is_fraction_of_the_nearer_spacing() {
+        // Levels 0.2, 0.8, 1.8, 3.2: spacings 0.6, 1.0, 1.4 (closed form).
         let f = sample();
         let shown: Vec<&StateLevel> = f.levels.iter().collect();
-        assert_abs_diff_eq!(amplitude(&shown, 0.0), 0.4 * 0.6, epsilon = 1e-12);
-        assert_abs_diff_eq!(amplitude(&shown[..1], 0.0), 0.4 * 0.2, epsilon = 1e-12);
+        let a = amplitudes(&shown, 0.0, WAVE_FRACTION);
+        for (got, want) in a.iter().zip([0.6, 0.6, 1.0, 1.4]) {
+            assert_abs_diff_eq!(*got, 0.4 * want, epsilon = 1e-12);
+        }
+        let one = amplitudes(&shown[..1], 0.0, WAVE_FRACTION);
+        assert_abs_diff_eq!(one[0], 0.4 * 0.2, epsilon = 1e-12);
+        assert_abs_diff_eq!(amplitudes(&shown, 0.0, 1.0)[3], 1.4, epsilon = 1e-12);
     }
 
     #[test]
     fn neighbouring_curves_do_not_meet() {
         let f = sample();
         let shown: Vec<&StateLevel> = f.levels.iter().collect();
-        let a = amplitude(&shown, 0.0);
-        let c1 = curve(&f, shown[0], a);
-        let c2 = curve(&f, shown[1], a);
-        let top1 = c1.iter().fold(f64::MIN, |m, p| m.max(p.1));
-        let bot2 = c2.iter().fold(f64::MAX, |m, p| m.min(p.1));
-        assert!(top1 < bot2, "{top1} >= {bot2}");
+        let a = amplitudes(&shown, 0.0, WAVE_FRACTION);
+        for k in 0..3 {
+            let c1 = curve(&f, shown[k], a[k]);
+            let c2 = curve(&f, shown[k + 1], a[k + 1]);
+            let top1 = c1.iter().fold(f64::MIN, |m, p| m.max(p.1));
+            let bot2 = c2.iter().fold(f64::MAX, |m, p| m.min(p.1));
+            assert!(top1 < bot2, "{k}: {top1} >= {bot2}");
+        }
     }
 
     #[test]

@@ -144,6 +144,10 @@ pub struct Style {
     /// Levels to show in the states figure, by quantum number `n`; `None`
     /// shows all given levels.
     pub levels: Option<Vec<usize>>,
+    /// Wavefunction amplitude in the states figure as a fraction of the
+    /// smallest spacing between shown levels. Default
+    /// [`super::WAVE_FRACTION`] (0.4). Range (0, 5].
+    pub amplitude: f64,
 }
 
 impl Default for Style {
@@ -157,6 +161,7 @@ impl Default for Style {
             energy_window: None,
             x_window: None,
             levels: None,
+            amplitude: super::WAVE_FRACTION,
         }
     }
 }
@@ -179,10 +184,24 @@ pub(super) struct Px {
     pub per_pt: f64,
 }
 
+impl Style {
+    /// Checks every option: the size, type size, line width, palette,
+    /// windows and amplitude, with the range each must lie in.
+    pub fn validate(&self) -> Result<(), PlotError> {
+        Px::new(self).map(|_| ())
+    }
+}
+
 impl Px {
     /// Checks the style and derives pixel measures.
     pub fn new(style: &Style) -> Result<Px, PlotError> {
         let (w, h, dpi) = style.size.pixels()?;
+        if !(style.amplitude > 0.0 && style.amplitude <= 5.0) {
+            return Err(PlotError::BadStyle(format!(
+                "wave amplitude {} outside (0, 5] (fraction of the level spacing)",
+                style.amplitude
+            )));
+        }
         if !(2.0..=72.0).contains(&style.font_pt) {
             return Err(PlotError::BadStyle(format!(
                 "font size {} pt outside 2..=72",

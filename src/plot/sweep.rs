@@ -12,14 +12,13 @@
 //! wavelength) as points joined by a line.
 
 use super::axes::{
-    axis_range, bounds_of, check, check_finite, check_len, draw_err, frame, label_areas, polyline,
-    text, titled, usable, y_area, y_ticks, Pt,
+    axis_range, bounds_of, check, check_finite, check_len, draw_err, frame, label_areas, legend,
+    polyline, square, titled, usable, y_area, y_ticks, Pt, Swatch,
 };
 use super::style::{Px, Rgb, LEVEL_INK};
 use super::{PlotError, Style};
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 /// Colour of the thin lines joining level j across cases.
 const JOIN_INK: Rgb = Rgb(0xBB, 0xBB, 0xBB);
@@ -49,6 +48,18 @@ pub enum SweepData {
     },
 }
 
+/// A measured value to draw over a sweep: at `x`, value `y`, with one
+/// standard uncertainty `sigma` (0 when unknown).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Measured {
+    /// The swept value.
+    pub x: f64,
+    /// The measured value, in the figure's y unit.
+    pub y: f64,
+    /// Its standard uncertainty (0 when unknown).
+    pub sigma: f64,
+}
+
 /// Levels or a quantity against a varied parameter.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SweepFigure {
@@ -62,12 +73,25 @@ pub struct SweepFigure {
     pub data: SweepData,
     /// Unit of the y axis, e.g. "eV" or "nm".
     pub y_unit: String,
+    /// Measured values to draw over the computed ones (open squares), in
+    /// the figure's units; may be empty.
+    pub measured: Vec<Measured>,
 }
 
 impl SweepFigure {
     /// Checks lengths, finiteness and HOMO/LUMO indices.
     pub(super) fn validate(&self) -> Result<(), PlotError> {
         check("swept values", &self.values)?;
+        for (i, m) in self.measured.iter().enumerate() {
+            check_finite(&format!("measured point {}", i + 1), &[m.x, m.y, m.sigma])?;
+            if m.sigma < 0.0 {
+                return Err(PlotError::Invalid(format!(
+                    "measured point {}: negative uncertainty {}",
+                    i + 1,
+                    m.sigma
+                )));
+            }
+        }
         match &self.data {
             SweepData::Levels(cases) => {
                 check_len("sweep cases", self.values.len(), cases.len())?;
@@ -130,15 +154,30 @@ pub(super) fn draw<DB: DrawingBackend>(
     let (ys, y_name, window) = match &fig.data {
         SweepData::Levels(cases) => (
             cases.iter().flat_map(|c| c.energies.clone()).collect(),
-            "energy".to_string(),
+            "level energy".to_string(),
             style.energy_window,
         ),
         SweepData::Quantity { name, values } => (values.clone(), name.clone(), None),
     };
+    let ys: Vec<f64> = ys
+        .into_iter()
+        .chain(
+            fig.measured
+                .iter()
+                .filter(|m| style.x_window.is_none_or(|(a, b)| m.x >= a && m.x <= b))
+                .flat_map(|m| [m.y - m.sigma, m.y + m.sigma]),
+        )
+        .collect();
+    let xs: Vec<f64> = fig
+        .values
+        .iter()
+        .copied()
+        .chain(fig.measured.iter().map(|m| m.x))
+        .collect();
     let (x0, x1) = match style.x_window {
         Some(w) => axis_range("swept values", Some(w), &fig.values, 0.0)?,
         None => {
-            let (a, b) = axis_range("swept values", None, &fig.values, 0.0)?;
+            let (a, b) = axis_range("swept values", None, &xs, 0.0)?;
             let slack = hw + 0.04 * (b - a);
             (a - slack, b + slack)
         }
@@ -166,6 +205,11 @@ pub(super) fn draw<DB: DrawingBackend>(
         true,
     )?;
 
+    let (xs_px, ys_px) = chart.plotting_area().get_pixel_range();
+    let key_at = (xs_px.end, ys_px.start - (px.font * 0.8) as i32);
+    let sq = px.pt(3.0);
+    let measured_swatch = (Swatch::Square(style.ink.rgb(), sq, px.thin), "measured");
+    draw_measured(root, &mut chart, fig, &b, style, px, sq)?;
     match &fig.data {
         SweepData::Quantity { values, .. } => {
             let colour = style.series(0).rgb();
@@ -180,6 +224,15 @@ pub(super) fn draw<DB: DrawingBackend>(
                         .map(|p| Circle::new(p, r, colour.filled())),
                 )
                 .map_err(draw_err)?;
+            if !fig.measured.is_empty() {
+                legend(
+                    root,
+                    px,
+                    style,
+                    key_at,
+                    &[(Swatch::Dot(colour, r), "computed"), measured_swatch],
+                )?;
+            }
         }
         SweepData::Levels(cases) => {
             let mut order: Vec<usize> = (0..cases.len()).collect();
@@ -199,13 +252,15 @@ pub(super) fn draw<DB: DrawingBackend>(
                     polyline(&mut chart, &[(x - hw, *e), (x + hw, *e)], &b, bar)?;
                 }
             }
-            marks(root, &mut chart, fig, cases, &b, style, px)?;
+            let extra = (!fig.measured.is_empty()).then_some(measured_swatch);
+            marks(root, &mut chart, fig, cases, &b, style, px, key_at, extra)?;
         }
     }
     Ok(())
 }
 
 /// HOMO and LUMO markers, with a key above the plot's top right corner.
+#[allow(clippy::too_many_arguments)]
 fn marks<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     chart: &mut super::axes::Linear<'_, DB>,
@@ -214,6 +269,8 @@ fn marks<DB: DrawingBackend>(
     b: &super::axes::Bounds,
     style: &Style,
     px: &Px,
+    key_at: (i32, i32),
+    extra: Option<(Swatch, &str)>,
 ) -> Result<(), PlotError> {
     let r = px.pt(3.2);
     let (hc, lc) = (style.series(0).rgb(), style.series(1).rgb());
@@ -238,33 +295,44 @@ fn marks<DB: DrawingBackend>(
         )
         .map_err(draw_err)?;
 
-    // Key, right-aligned above the frame: "o HOMO  ^ LUMO".
-    let (xs, ys) = chart.plotting_area().get_pixel_range();
-    let y = ys.start - (px.font * 0.8) as i32;
-    let font = text(px, style, 0.9).pos(Pos::new(HPos::Left, VPos::Center));
-    let width = |s: &str| {
-        root.estimate_text_size(s, &font)
-            .map(|(w, _)| w as i32)
-            .unwrap_or((px.font * 3.0) as i32)
-    };
-    let mut x = xs.end;
-    let step = 2 * r + px.pt(7.0);
-    if has.1 {
-        x -= width("LUMO");
-        root.draw(&Text::new("LUMO", (x, y), font.clone()))
-            .map_err(draw_err)?;
-        x -= step;
-        root.draw(&TriangleMarker::new((x + r, y), r + 1, lc.filled()))
-            .map_err(draw_err)?;
-        x -= px.pt(10.0);
-    }
+    // Key, right-aligned above the frame.
+    let mut entries = Vec::new();
     if has.0 {
-        x -= width("HOMO");
-        root.draw(&Text::new("HOMO", (x, y), font.clone()))
-            .map_err(draw_err)?;
-        x -= step;
-        root.draw(&Circle::new((x + r, y), r, hc.filled()))
-            .map_err(draw_err)?;
+        entries.push((Swatch::Dot(hc, r), "HOMO"));
+    }
+    if has.1 {
+        entries.push((Swatch::Triangle(lc, r), "LUMO"));
+    }
+    entries.extend(extra);
+    legend(root, px, style, key_at, &entries)
+}
+
+/// The measured points: open squares in the ink colour with their error
+/// bars, clipped to the plot.
+fn draw_measured<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    chart: &mut super::axes::Linear<'_, DB>,
+    fig: &SweepFigure,
+    b: &super::axes::Bounds,
+    style: &Style,
+    px: &Px,
+    half: i32,
+) -> Result<(), PlotError> {
+    let ink = style.ink.rgb();
+    for m in &fig.measured {
+        if m.sigma > 0.0 {
+            polyline(
+                chart,
+                &[(m.x, m.y - m.sigma), (m.x, m.y + m.sigma)],
+                b,
+                ink.stroke_width(px.thin),
+            )?;
+        }
+        if b.contains((m.x, m.y)) {
+            let c = chart.backend_coord(&(m.x, m.y));
+            root.draw(&square(c, half, ink, px.thin))
+                .map_err(draw_err)?;
+        }
     }
     Ok(())
 }
@@ -288,6 +356,7 @@ pub(super) fn sample() -> SweepFigure {
         values,
         data: SweepData::Levels(cases),
         y_unit: "eV".into(),
+        measured: Vec::new(),
     }
 }
 

@@ -108,7 +108,7 @@ pub fn bands_document(
             .map(|c| {
                 json!({
                     "bonds": c.bonds,
-                    "box_length": u.length_out(c.box_length),
+                    "box_length": super::derived(u.length_out(c.box_length)),
                     "points": c.points,
                     "homo": c.homo,
                     "lumo": c.lumo,
@@ -293,7 +293,7 @@ pub fn bands_table(model: &Model, r: &BandsResult) -> String {
         }
         let _ = writeln!(s);
     }
-    s
+    crate::report::no_negative_zero(&s)
 }
 
 fn finite_table(s: &mut String, model: &Model, r: &BandsResult) {

@@ -98,5 +98,5 @@ pub fn converge_table(model: &Model, conv: &Convergence) -> String {
             conv.expected_order
         );
     }
-    s
+    crate::report::no_negative_zero(&s)
 }

@@ -57,13 +57,25 @@ pub fn states(model: &Model, sol: &Solution, density: bool) -> Figure {
         .collect();
     let mut f = StatesFigure::new(x, v, levels);
     f.density = density;
+    if walls {
+        f.walls = Some((
+            u.length_out(model.domain.from),
+            u.length_out(model.domain.to),
+        ));
+    }
     f.x_unit = u.length.label().to_string();
     f.energy_unit = u.energy.label().to_string();
     Figure::States(f)
 }
 
-/// Molar absorptivity against wavelength, with the transitions as sticks.
-pub fn spectrum(sol: &Solution, sp: &Spectrum) -> Figure {
+/// Molar absorptivity against wavelength (or energy, or wavenumber), with
+/// the transitions as sticks and a measured spectrum over them if given.
+pub fn spectrum(
+    sol: &Solution,
+    sp: &Spectrum,
+    axis: plot::SpectrumAxis,
+    measured: Option<plot::MeasuredSpectrum>,
+) -> Figure {
     let sticks = sol
         .transitions
         .iter()
@@ -73,11 +85,10 @@ pub fn spectrum(sol: &Solution, sp: &Spectrum) -> Figure {
             strength: t.strength,
         })
         .collect();
-    Figure::Spectrum(plot::SpectrumFigure::new(
-        sp.wavelength_nm.clone(),
-        sp.epsilon.clone(),
-        sticks,
-    ))
+    let mut f = plot::SpectrumFigure::new(sp.wavelength_nm.clone(), sp.epsilon.clone(), sticks);
+    f.axis = axis;
+    f.measured = measured;
+    Figure::Spectrum(f)
 }
 
 /// Error against spacing on log-log axes, with the expected slope.
@@ -133,13 +144,23 @@ pub fn bands(model: &Model, result: &crate::study::bands::BandsResult) -> Figure
 }
 
 /// Levels (with HOMO and LUMO marked), the gap, or the wavelength against
-/// the first varied key of a sweep.
-pub fn sweep(result: &crate::study::sweep::SweepResult, kind: &str) -> Figure {
+/// the first varied key of a sweep, with measured values of the same
+/// quantity drawn over them when given.
+pub fn sweep(
+    result: &crate::study::sweep::SweepResult,
+    kind: &str,
+    measured: Option<&crate::study::data::Data>,
+) -> Figure {
     let key = result.header.keys.first().cloned().unwrap_or_default();
     let energy_unit = result.header.units["energy"]
         .as_str()
         .unwrap_or("eV")
         .to_string();
+    let length_unit = result.header.units["length"]
+        .as_str()
+        .unwrap_or("angstrom")
+        .to_string();
+    let key_title = plot::key_title(&key, &length_unit, &energy_unit);
     let values: Vec<f64> = result
         .rows
         .iter()
@@ -159,7 +180,7 @@ pub fn sweep(result: &crate::study::sweep::SweepResult, kind: &str) -> Figure {
         ),
         "wavelength" => (
             plot::SweepData::Quantity {
-                name: "wavelength".into(),
+                name: "λ_max".into(),
                 values: result
                     .rows
                     .iter()
@@ -199,35 +220,45 @@ pub fn sweep(result: &crate::study::sweep::SweepResult, kind: &str) -> Figure {
         ),
     };
     Figure::Sweep(plot::SweepFigure {
-        key,
+        key: key_title,
         key_unit: String::new(),
         values,
         data,
         y_unit,
+        measured: measured
+            .map(|d| {
+                d.rows
+                    .iter()
+                    .map(|r| plot::Measured {
+                        x: r.value.as_f64(),
+                        y: r.observed,
+                        sigma: r.uncertainty.unwrap_or(0.0),
+                    })
+                    .collect()
+            })
+            .unwrap_or_default(),
     })
 }
 
-/// Observed against model values of a fit, residuals below.
-pub fn fit(result: &crate::study::fit::FitResult, energy_unit: &str) -> Figure {
-    let name = result.quantity.name().to_string();
-    let y_unit = if name.contains("wavelength") {
-        "nm".to_string()
-    } else {
-        energy_unit.to_string()
-    };
+/// Observed against model values of a fit, the model as a curve over the
+/// whole range, residuals (model − observed) below; lengths and energies
+/// in the units labelled `length` and `energy`.
+pub fn fit(result: &crate::study::fit::FitResult, length: &str, energy: &str) -> Figure {
     let uncertainty: Option<Vec<f64>> = result
         .rows
         .iter()
         .map(|r| r.uncertainty)
         .collect::<Option<Vec<f64>>>();
+    let (y_name, y_unit) = plot::quantity_parts(&result.quantity.name(), energy);
     Figure::Fit(plot::FitFigure {
         x: result.rows.iter().map(|r| r.value.as_f64()).collect(),
         observed: result.rows.iter().map(|r| r.observed).collect(),
         uncertainty,
         model: result.rows.iter().map(|r| r.model).collect(),
-        x_name: result.key.clone(),
+        curve: result.curve.clone(),
+        x_name: plot::key_title(&result.key, length, energy),
         x_unit: String::new(),
-        y_name: name,
+        y_name,
         y_unit,
     })
 }

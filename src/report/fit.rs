@@ -28,6 +28,7 @@ pub fn fit_document(fit: &FitResult, units: &Value, input: &Value) -> Value {
             "value": r.value.to_json(), "observed": r.observed, "model": r.model,
             "residual": r.model - r.observed, "uncertainty": r.uncertainty,
         })).collect::<Vec<_>>(),
+        "curve": fit.curve.iter().map(|(x, y)| json!({"value": x, "model": y})).collect::<Vec<_>>(),
         "input": input,
     })
 }
@@ -69,7 +70,7 @@ pub fn fit_table(fit: &FitResult) -> String {
         "\nrms {:.6e}  chi2 {:.6e}  dof {}  evaluations {}\n",
         fit.rms, fit.chi2, fit.dof, fit.evaluations
     ));
-    out
+    crate::report::no_negative_zero(&out)
 }
 
 /// The `chainwell.fit/1` document of a fit that has not finished: its best

@@ -58,7 +58,10 @@ pub fn solve_document(
             "refinement": sol.refinement,
         }),
     );
-    doc.insert("box_length".into(), json!(u.length_out(sol.box_length)));
+    doc.insert(
+        "box_length".into(),
+        json!(super::derived(u.length_out(sol.box_length))),
+    );
     doc.insert("levels".into(), levels(model, sol));
     if let Some(groups) = crate::pipeline::ring_degeneracies(sol) {
         doc.insert("degeneracies".into(), degeneracies(model, &groups));

@@ -1,6 +1,8 @@
 //! CSV files of a solve, for pandas or any plotting tool: `levels.csv`,
 //! `wavefunctions.csv`, `transitions.csv` and `spectrum.csv`, with units in
-//! the column headers and the input's units throughout.
+//! the column headers in one style, `name (unit)` (`energy (eV)`,
+//! `x (angstrom)`; a column without a unit is a count or a pure number),
+//! and the input's units throughout.
 
 use std::fmt::Write;
 use std::path::Path;
@@ -26,7 +28,7 @@ pub fn solve_files(
     let u = &model.units;
     let (e, l) = (u.energy.label(), u.length.label());
     let mut levels = format!(
-        "n,energy_{e},nodes,box_energy_{e},error_estimate_{e},mean_x_{l},spread_{l},effective_length_{l}\n"
+        "n,energy ({e}),nodes,box_energy ({e}),error_estimate ({e}),mean_x ({l}),spread ({l}),effective_length ({l})\n"
     );
     for (lv, st) in sol.levels.iter().zip(&sol.states) {
         let _ = writeln!(
@@ -44,9 +46,9 @@ pub fn solve_files(
     }
     // Wavefunctions in 1/sqrt(length unit): psi_input = psi_A * sqrt(A per unit).
     let scale = u.length.in_angstrom().sqrt();
-    let mut wf = format!("x_{l},V_{e}");
+    let mut wf = format!("x ({l}),V ({e})");
     for lv in &sol.levels {
-        let _ = write!(wf, ",psi_{}", lv.n);
+        let _ = write!(wf, ",psi_{} ({l}^-1/2)", lv.n);
     }
     wf.push('\n');
     for (i, x) in sol.x.iter().enumerate() {
@@ -62,7 +64,7 @@ pub fn solve_files(
         wf.push('\n');
     }
     let mut tr = format!(
-        "from,to,energy_{e},wavelength_nm,dipole_e_{l},dipole_debye,strength,occupancy_factor,box_dipole_e_{l}\n"
+        "from,to,energy ({e}),wavelength (nm),dipole (e {l}),dipole (D),strength,occupancy_factor,box_dipole (e {l})\n"
     );
     for t in &sol.transitions {
         let _ = writeln!(
@@ -79,7 +81,7 @@ pub fn solve_files(
             opt(t.box_dipole.map(|d| u.dipole_out(d)))
         );
     }
-    let mut sp = String::from("wavelength_nm,epsilon_L_per_mol_cm\n");
+    let mut sp = String::from("wavelength (nm),epsilon (L mol-1 cm-1)\n");
     for (w, eps) in spectrum.wavelength_nm.iter().zip(&spectrum.epsilon) {
         let _ = writeln!(sp, "{},{}", num(*w), num(*eps));
     }
@@ -98,6 +100,8 @@ fn opt(x: Option<f64>) -> String {
 /// A number as the shortest text that reads back exactly, in exponent form
 /// when it is very small or very large.
 pub fn num(x: f64) -> String {
+    // A negative zero prints as 0.
+    let x = if x == 0.0 { 0.0 } else { x };
     let a = x.abs();
     if x == 0.0 || (1e-4..1e9).contains(&a) || !x.is_finite() {
         format!("{x}")

@@ -21,7 +21,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
         u.length_out(sol.grid.spacing),
         model.grid.order,
         model.grid.scheme,
-        u.length_out(sol.box_length)
+        super::derived(u.length_out(sol.box_length))
     );
     let _ = writeln!(s);
     if let Some(r) = &sol.refinement {
@@ -126,7 +126,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
         sol.diagnostics.orthogonality_ratio,
         sol.timing.solve_s
     );
-    s
+    crate::report::no_negative_zero(&s)
 }
 
 /// Plain-language lines on the degenerate levels of a ring.

@@ -2,9 +2,11 @@
 //!
 //! The CSV of a sweep is in tidy long form, one line per case and level,
 //! so that `pandas.read_csv` gives a frame ready for grouping and plotting:
-//! `case`, one column per varied key, `n`, `energy`, `occupied` (electrons
-//! in the level), then the case's `homo`, `lumo`, `gap` and `wavelength_nm`
-//! (empty when the input fills no electrons).
+//! `case`, one column per varied key, `n`, `energy (eV)`, `occupied`
+//! (electrons in the level), then the case's `homo` and `lumo` (level
+//! numbers), `gap (eV)` and `wavelength (nm)` (empty when the input fills
+//! no electrons); headers name the unit as `name (unit)`, the input's
+//! energy unit in place of eV.
 
 use std::fmt::Write;
 
@@ -24,7 +26,11 @@ pub fn sweep_csv(result: &SweepResult) -> String {
         out.push(',');
         out.push_str(k);
     }
-    out.push_str(",n,energy,occupied,homo,lumo,gap,wavelength_nm\n");
+    let e = result.header.units["energy"].as_str().unwrap_or("eV");
+    let _ = writeln!(
+        out,
+        ",n,energy ({e}),occupied,homo,lumo,gap ({e}),wavelength (nm)"
+    );
     for row in &result.rows {
         for (n, e) in row.energies() {
             let _ = write!(out, "{}", row.case);
@@ -42,7 +48,7 @@ pub fn sweep_csv(result: &SweepResult) -> String {
             );
         }
     }
-    out
+    crate::report::no_negative_zero(&out)
 }
 
 /// The sweep as a readable table: the varied values, then the frontier
@@ -111,7 +117,7 @@ pub fn sweep_table(result: &SweepResult) -> String {
         out.push_str(cells.join("  ").trim_end());
         out.push('\n');
     }
-    out
+    crate::report::no_negative_zero(&out)
 }
 
 /// The header's keys of a sweep document (no `rows`, no `complete`).

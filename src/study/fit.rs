@@ -29,7 +29,7 @@
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
 
-use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
+use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt, TerminationReason};
 use nalgebra::storage::Owned;
 use nalgebra::{DMatrix, DVector, Dyn};
 use rayon::prelude::*;
@@ -203,7 +203,14 @@ pub struct FitResult {
     pub evaluations: usize,
     /// Why the minimiser stopped.
     pub termination: String,
+    /// The fitted model on about [`CURVE_POINTS`] values of the key over
+    /// the data's range, between the data as well as at them
+    /// ([`super::curve`]), as (key value, model) pairs.
+    pub curve: Vec<(f64, f64)>,
 }
+
+/// Values of the key at which the fitted model is evaluated for its curve.
+pub const CURVE_POINTS: usize = 100;
 
 /// Why a fit failed.
 #[derive(Debug, thiserror::Error)]
@@ -504,6 +511,27 @@ fn check_determined(spec: &FitSpec, j: &DMatrix<f64>) -> Result<(), FitError> {
     Ok(())
 }
 
+/// Why the minimiser stopped, as a plain word or phrase for documents:
+/// `converged` (relative reduction of the sum of squares or of the step
+/// below the tolerance, J. J. Moré, "The Levenberg-Marquardt algorithm:
+/// implementation and theory", Lecture Notes in Mathematics 630 (1978)),
+/// `residuals zero`, `orthogonal` (residuals orthogonal to the Jacobian's
+/// columns), or the reason it failed.
+pub fn termination_word(t: &TerminationReason) -> String {
+    match t {
+        TerminationReason::Converged { .. } => "converged".into(),
+        TerminationReason::ResidualsZero => "residuals zero".into(),
+        TerminationReason::Orthogonal => "orthogonal".into(),
+        TerminationReason::LostPatience => "too many evaluations".into(),
+        TerminationReason::NoImprovementPossible(why) => format!("no improvement possible ({why})"),
+        TerminationReason::NoParameters => "no free parameters".into(),
+        TerminationReason::NoResiduals => "no data rows".into(),
+        TerminationReason::User(why) => format!("stopped ({why})"),
+        TerminationReason::Numerical(why) => format!("numerical failure ({why})"),
+        TerminationReason::WrongDimensions(why) => format!("wrong dimensions ({why})"),
+    }
+}
+
 /// Runs the fit. The runner's stop flag (Ctrl-C) ends it early with
 /// [`FitError::Interrupted`] carrying the best values so far; each new best
 /// is offered to the runner's checkpoint.
@@ -553,7 +581,7 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
     }
     if !report.termination.was_successful() {
         return Err(FitError::NoConvergence {
-            reason: format!("{:?}", report.termination),
+            reason: termination_word(&report.termination),
             evaluations: evals,
         });
     }
@@ -567,6 +595,11 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         source: Box::new(source),
     })?;
     check_determined(spec, &j)?;
+    let curve =
+        super::curve::curve(spec, &p, CURVE_POINTS, stop).map_err(|_| FitError::Interrupted {
+            best: p.clone(),
+            evaluations: evals,
+        })?;
     let w = weights(spec);
     let chi2: f64 = model
         .iter()
@@ -630,7 +663,8 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         chi2,
         dof,
         evaluations: evals,
-        termination: format!("{:?}", report.termination),
+        termination: termination_word(&report.termination),
+        curve,
     })
 }
 

@@ -16,6 +16,7 @@ pub mod bands;
 pub mod cases;
 pub mod checkpoint;
 pub mod converge;
+pub mod curve;
 pub mod data;
 pub mod fit;
 pub mod merge;
