@@ -295,10 +295,10 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
     let data = Data::read(data_path).map_err(|e| {
         CommandError::Usage(e.to_string().trim_start_matches("error: ").to_string())
     })?;
-    if free.iter().any(|f| f.key == data.key) {
+    if let Some(f) = free.iter().find(|f| data.keys.contains(&f.key)) {
         return Err(CommandError::Usage(format!(
-            "--free {0}: {0} is the data's varied key",
-            data.key
+            "--free {0}: {0} is a column of the data (each row sets it)",
+            f.key
         )));
     }
     let input = json!({
@@ -334,7 +334,7 @@ pub fn run(args: FitArgs) -> Result<Outcome, CommandError> {
             } else {
                 report::fit::fit_table(&r)
             };
-            Ok(Outcome::printed(stdout, vec![]))
+            Ok(Outcome::printed(stdout, r.warnings.clone()))
         }
         Err(FitError::Interrupted { best, evaluations }) => {
             let progress = FitProgress { best, evaluations };

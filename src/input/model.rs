@@ -176,6 +176,12 @@ pub struct Model {
     /// find. Whether a key was written is recorded in the typed specs
     /// ([`LevelSpec::count_given`], ...), not here.
     pub key_locations: std::collections::BTreeMap<String, Location>,
+    /// What the user should know about values that pass the checks but are
+    /// implausible for the system they describe (a bond length in nm, an
+    /// alternation of 90 eV), each naming its key.
+    pub warnings: Vec<String>,
+    /// The Hückel picture of the same atoms (`[huckel]`), if asked for.
+    pub huckel: Option<crate::observables::huckel::HuckelSpec>,
 }
 
 impl Model {

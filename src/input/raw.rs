@@ -55,6 +55,9 @@ pub struct RawInput {
     /// Absorption-spectrum options.
     #[serde(default, deserialize_with = "table")]
     pub spectrum: Option<Spanned<RawSpectrum>>,
+    /// The Hückel (tight-binding) picture of the same atoms.
+    #[serde(default, deserialize_with = "table")]
+    pub huckel: Option<Spanned<RawHuckel>>,
 }
 
 /// `[units]`.
@@ -157,6 +160,8 @@ pub struct RawChain {
     pub alternation: Option<Num>,
     pub end_cap_height: Option<Num>,
     pub end_cap_width: Option<Num>,
+    /// Net charge of the chain (electrons = contributions − charge).
+    pub charge: Option<Int>,
     #[serde(default, deserialize_with = "tables")]
     pub site: Option<Vec<Spanned<RawSite>>>,
 }
@@ -166,9 +171,38 @@ pub struct RawChain {
 #[serde(deny_unknown_fields)]
 #[allow(missing_docs)]
 pub struct RawSite {
+    /// 1-based from the left; negative counts from the right (−1 = last).
     pub atom: Int,
-    pub height: Num,
+    pub height: Option<Num>,
     pub width: Option<Num>,
+    /// Pi electrons the atom gives (default 1).
+    pub electrons: Option<Int>,
+}
+
+/// `[huckel]`: the tight-binding levels of the chain's atoms.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawHuckel {
+    pub alpha: Option<Num>,
+    pub beta: Option<Num>,
+    pub beta_double: Option<Num>,
+    pub beta_single: Option<Num>,
+    /// Atoms, for an input without a chain.
+    pub atoms: Option<Int>,
+    /// Close the atoms into a ring (default: the domain's boundary).
+    pub ring: Option<Spanned<bool>>,
+    #[serde(default, deserialize_with = "tables")]
+    pub site: Option<Vec<Spanned<RawHuckelSite>>>,
+}
+
+/// `[[huckel.site]]`: a heteroatom's Coulomb-integral shift.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawHuckelSite {
+    pub atom: Int,
+    pub alpha: Num,
 }
 
 /// `[spectrum]`: how absorption bands are broadened.

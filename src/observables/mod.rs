@@ -25,6 +25,8 @@
 //! * [`transitions`](mod@transitions): [`dipole`], [`transitions()`] /
 //!   [`Transition`], oscillator strengths (R. C. Hilborn, Am. J. Phys. 50, 982
 //!   (1982)) and the Thomas-Reiche-Kuhn sum [`trk_sum`] / [`SumRule`].
+//! * [`huckel`]: the tight-binding levels of the same atoms, [`HuckelSpec`] /
+//!   [`Huckel`] (E. Hückel, Z. Phys. 70, 204 (1931)).
 //! * [`degeneracy`]: grouping of (near-)degenerate levels, e.g. the `+-j`
 //!   pairs of a ring ([`group_levels`], [`summarize_levels`], [`Degeneracy`]).
 //! * [`spectrum`]: [`absorption`] / [`Spectrum`] with [`LineShape`],
@@ -33,6 +35,7 @@
 
 pub mod boxlimit;
 pub mod degeneracy;
+pub mod huckel;
 pub mod occupancy;
 pub mod spectrum;
 pub mod states;
@@ -40,7 +43,8 @@ pub mod transitions;
 
 pub use boxlimit::{box_dipole, box_energy, effective_box_length};
 pub use degeneracy::{group_levels, summarize_levels, Degeneracy};
-pub use occupancy::{fill, Occupancy, OccupancyError};
+pub use huckel::{Huckel, HuckelError, HuckelSpec};
+pub use occupancy::{fill, Excitation, Occupancy, OccupancyError};
 pub use spectrum::{
     absorption, default_wavelength_grid, integrated_strength, LineShape, Spectrum,
     STRENGTH_PER_ABSORPTIVITY,

@@ -14,6 +14,21 @@
 //! below into the singly occupied one appears among the transitions (see
 //! `transitions`).
 //!
+//! # Open shells
+//! Levels of one degenerate group (a ring's `+j`/`-j` pair, two equivalent
+//! halves of a molecule) are filled together: when the HOMO belongs to a
+//! group of `g` levels (levels within [`SHELL_TOLERANCE`], see
+//! [`group_levels`]) that holds fewer than `2g` electrons, the shell is
+//! open. The group's electrons are then spread evenly over its levels
+//! (which of two degenerate states holds them is arbitrary, and any mixture
+//! returned by an eigensolver is equally valid, so only the even share does
+//! not depend on that choice), the HOMO is the group's highest level, the
+//! LUMO the first level above the group, and there is no HOMO-LUMO gap: the
+//! gap inside the group is zero and `hc / 0` is no absorption. The caller
+//! names the lowest allowed excitation instead ([`Occupancy::name_lowest`]).
+//! A single level holding one electron (an odd count) is an open shell too,
+//! a radical; its gap to the next level is still reported.
+//!
 //! # Levels below the computed window
 //! Eigensolvers may return a window of levels `first_n, first_n + 1, ...`
 //! rather than all levels from 1. Levels below `first_n` are still filled
@@ -21,8 +36,21 @@
 //! computed levels only and `total_energy_complete` is `false`.
 
 use crate::constants::hc_ev_nm;
+use crate::units::Units;
 use serde::Serialize;
 use thiserror::Error;
+
+use super::degeneracy::group_levels;
+use super::transitions::Transition;
+
+/// Dimensionless tolerance for filling levels as one degenerate group (see
+/// [`group_levels`]): far above an eigensolver's round-off, far below a
+/// splitting worth a spectrum (common practice, no source).
+pub const SHELL_TOLERANCE: f64 = 1e-7;
+
+/// Oscillator strength, relative to the strongest listed transition, below
+/// which an excitation counts as forbidden (common practice, no source).
+pub const FORBIDDEN_RATIO: f64 = 1e-6;
 
 /// Errors of [`fill`]; each names the numbers involved.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -110,9 +138,107 @@ pub struct Occupancy {
     /// Whether `total_energy` covers every occupied level (true only when
     /// the computed levels start at level 1).
     pub total_energy_complete: bool,
-    /// Electrons in each computed level (0, 1 or 2), aligned with the input
-    /// energies.
+    /// Electrons in each computed level (0 to 2; a share for the levels of
+    /// an open degenerate group), aligned with the input energies.
     pub occupations: Vec<f64>,
+    /// Whether the HOMO's degenerate group holds fewer electrons than it
+    /// has room for (a radical, or a partly filled degenerate group).
+    pub open_shell: bool,
+    /// Level numbers of the HOMO's degenerate group (one level when it is
+    /// not degenerate).
+    pub homo_group: Vec<usize>,
+    /// For an open shell without a gap: the lowest excitation with a
+    /// non-negligible oscillator strength, set by [`Occupancy::name_lowest`].
+    pub lowest_allowed: Option<Excitation>,
+}
+
+/// One excitation named by the filling: from, to, energy (eV), wavelength
+/// (nm) and oscillator strength.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Excitation {
+    /// Lower level.
+    pub from: usize,
+    /// Upper level.
+    pub to: usize,
+    /// `E_to - E_from`, eV.
+    pub energy: f64,
+    /// `hc / energy`, nm.
+    pub wavelength_nm: f64,
+    /// Oscillator strength (with the occupancy factor).
+    pub strength: f64,
+}
+
+impl Occupancy {
+    /// Whether a transition is a real excitation of this filling: `false`
+    /// for one between two levels of the HOMO's degenerate group (zero
+    /// energy, no absorption).
+    pub fn keeps(&self, t: &Transition) -> bool {
+        !(self.homo_group.len() > 1
+            && self.homo_group.contains(&t.from)
+            && self.homo_group.contains(&t.to))
+    }
+
+    /// For an open shell without a gap, records the lowest-energy
+    /// transition of `list` whose strength is above [`FORBIDDEN_RATIO`] of
+    /// the strongest, as [`Occupancy::lowest_allowed`].
+    pub fn name_lowest(&mut self, list: &[Transition]) {
+        if !self.open_shell || self.gap.is_some() {
+            return;
+        }
+        let strongest = list.iter().map(|t| t.strength).fold(0.0, f64::max);
+        self.lowest_allowed = list
+            .iter()
+            .filter(|t| self.keeps(t) && t.energy > 0.0)
+            .filter(|t| strongest > 0.0 && t.strength > FORBIDDEN_RATIO * strongest)
+            .min_by(|a, b| a.energy.total_cmp(&b.energy))
+            .map(|t| Excitation {
+                from: t.from,
+                to: t.to,
+                energy: t.energy,
+                wavelength_nm: t.wavelength_nm,
+                strength: t.strength,
+            });
+    }
+
+    /// The warning that explains an open shell, in `units`; `None` for a
+    /// closed shell.
+    pub fn open_shell_warning(&self, units: &Units) -> Option<String> {
+        if !self.open_shell {
+            return None;
+        }
+        let e = units.energy.label();
+        if self.homo_group.len() == 1 {
+            return Some(format!(
+                "open shell: level {} holds one electron ({} electrons, an odd count: a radical); the gap is from it to level {}",
+                self.homo,
+                self.electrons,
+                self.lumo.unwrap_or(self.homo + 1)
+            ));
+        }
+        let first = self.homo_group[0];
+        let held: f64 = self
+            .homo_group
+            .iter()
+            .filter_map(|n| self.occupations.get(n.checked_sub(self.first_level)?))
+            .sum();
+        let mut text = format!(
+            "open shell: levels {first}-{} are degenerate and hold {held} of their {} electrons, so there is no HOMO-LUMO gap (it would be 0) and no absorption at its wavelength",
+            self.homo,
+            2 * self.homo_group.len()
+        );
+        match &self.lowest_allowed {
+            Some(x) => text.push_str(&format!(
+                "; the lowest allowed excitation is {} -> {} at {:.6} {e} ({:.1} nm)",
+                x.from,
+                x.to,
+                units.energy_out(x.energy),
+                x.wavelength_nm
+            )),
+            None => text.push_str("; no allowed excitation among the computed levels"),
+        }
+        text.push_str(". A molecule with this count distorts or is a diradical, which one-electron levels do not describe");
+        Some(text)
+    }
 }
 
 /// Fills `electrons` electrons into the levels whose energies (eV, ascending)
@@ -162,9 +288,33 @@ pub fn fill(
             });
         }
     }
-    let homo = electrons.div_ceil(2);
-    let lumo = homo + 1;
+    let aufbau_homo = electrons.div_ceil(2);
     let computed_up_to = (first_n - 1).saturating_add(energies.len());
+    if aufbau_homo + 1 > computed_up_to {
+        return Err(OccupancyError::TooFewLevels {
+            electrons,
+            needed_levels: aufbau_homo + 1,
+            computed_up_to,
+        });
+    }
+    if aufbau_homo < first_n {
+        return Err(OccupancyError::HomoBelowComputed {
+            electrons,
+            homo: aufbau_homo,
+            first_n,
+        });
+    }
+    // The degenerate group of the aufbau HOMO: a run of consecutive levels.
+    let groups = group_levels(energies, SHELL_TOLERANCE);
+    let index = aufbau_homo - first_n;
+    let group = groups
+        .iter()
+        .find(|g| g.contains(&index))
+        .cloned()
+        .unwrap_or_else(|| vec![index]);
+    let lo = first_n + group.iter().copied().min().unwrap_or(index);
+    let hi = first_n + group.iter().copied().max().unwrap_or(index);
+    let lumo = hi + 1;
     if lumo > computed_up_to {
         return Err(OccupancyError::TooFewLevels {
             electrons,
@@ -172,36 +322,41 @@ pub fn fill(
             computed_up_to,
         });
     }
-    if homo < first_n {
-        return Err(OccupancyError::HomoBelowComputed {
-            electrons,
-            homo,
-            first_n,
-        });
-    }
-    let odd = electrons % 2 == 1;
+    let size = hi - lo + 1;
+    let in_group = electrons - 2 * (lo - 1);
+    let open_shell = in_group < 2 * size;
+    let share = in_group as f64 / size as f64;
     let occupations: Vec<f64> = (first_n..=computed_up_to)
-        .map(|level| match level.cmp(&homo) {
-            std::cmp::Ordering::Less => 2.0,
-            std::cmp::Ordering::Equal if odd => 1.0,
-            std::cmp::Ordering::Equal => 2.0,
-            std::cmp::Ordering::Greater => 0.0,
+        .map(|level| {
+            if level < lo {
+                2.0
+            } else if level <= hi {
+                share
+            } else {
+                0.0
+            }
         })
         .collect();
     let total_energy = occupations.iter().zip(energies).map(|(o, e)| o * e).sum();
-    let gap = energies[lumo - first_n] - energies[homo - first_n];
-    let wavelength_nm = (gap > 0.0).then(|| hc_ev_nm() / gap);
+    let homo = hi;
+    // No gap inside an open degenerate group: it would be zero.
+    let gap =
+        (!open_shell || size == 1).then(|| energies[lumo - first_n] - energies[homo - first_n]);
+    let wavelength_nm = gap.filter(|&g| g > 0.0).map(|g| hc_ev_nm() / g);
     Ok(Occupancy {
         electrons,
         first_level: first_n,
         homo,
         lumo: Some(lumo),
-        singly_occupied: odd.then_some(homo),
-        gap: Some(gap),
+        singly_occupied: (size == 1 && open_shell).then_some(homo),
+        gap,
         wavelength_nm,
         total_energy,
         total_energy_complete: first_n == 1,
         occupations,
+        open_shell,
+        homo_group: (lo..=hi).collect(),
+        lowest_allowed: None,
     })
 }
 
@@ -318,11 +473,47 @@ mod tests {
     }
 
     #[test]
-    fn degenerate_homo_lumo_has_no_wavelength() {
-        // A ring's doubly degenerate pair (closed form, levels of a ring).
-        let occ = fill(&[0.0, 1.0, 1.0, 4.0], 1, 4).expect("fits");
-        assert_eq!(occ.gap, Some(0.0));
+    fn a_half_filled_degenerate_pair_is_an_open_shell_without_a_gap() {
+        // The free ring's levels j^2 (0, 1, 1, 4, 4, 9, 9: the pairs +-j;
+        // L. Salem, The Molecular Orbital Theory of Conjugated Systems,
+        // ch. 1): 4 electrons put 2 in the pair j = 1.
+        let ring = [0.0, 1.0, 1.0, 4.0, 4.0, 9.0, 9.0];
+        let occ = fill(&ring, 1, 4).expect("fits");
+        assert!(occ.open_shell);
+        assert_eq!(occ.homo_group, vec![2, 3]);
+        assert_eq!((occ.homo, occ.lumo), (3, Some(4)));
+        assert_eq!(occ.gap, None);
         assert_eq!(occ.wavelength_nm, None);
+        assert_eq!(occ.singly_occupied, None);
+        // The pair shares its two electrons evenly.
+        assert_eq!(occ.occupations, vec![2.0, 1.0, 1.0, 0.0, 0.0, 0.0, 0.0]);
+        // 4n + 2 electrons close the shell (Hückel's rule): 6 fill the pair.
+        let closed = fill(&ring, 1, 6).expect("fits");
+        assert!(!closed.open_shell);
+        assert_eq!((closed.homo, closed.lumo), (3, Some(4)));
+        assert_eq!(closed.gap, Some(3.0));
+        // 5 electrons: 2 in j = 0, the other 3 shared by the pair j = 1.
+        let five = fill(&ring, 1, 5).expect("fits");
+        assert!(five.open_shell);
+        assert_eq!(five.occupations[1..3], [1.5, 1.5]);
+        let total: f64 = five.occupations.iter().sum();
+        assert_eq!(total, 5.0);
+    }
+
+    #[test]
+    fn an_odd_count_on_a_single_level_is_a_radical_with_a_gap() {
+        let occ = fill(&LEVELS, 1, 5).expect("fits");
+        assert!(occ.open_shell);
+        assert_eq!(occ.homo_group, vec![3]);
+        assert_eq!(occ.gap, Some(3.5));
+        let w = occ
+            .open_shell_warning(&Units::default())
+            .expect("a radical is explained");
+        assert!(w.contains("radical") && w.contains("level 3"), "{w}");
+        assert!(fill(&LEVELS, 1, 6)
+            .expect("fits")
+            .open_shell_warning(&Units::default())
+            .is_none());
     }
 
     proptest! {
@@ -334,6 +525,7 @@ mod tests {
             let total: f64 = occ.occupations.iter().sum();
             prop_assert_eq!(total, electrons as f64);
             prop_assert!(occ.occupations.iter().all(|&o| o == 0.0 || o == 1.0 || o == 2.0));
+            prop_assert_eq!(occ.open_shell, electrons % 2 == 1);
             prop_assert!(occ.occupations.windows(2).all(|w| w[0] >= w[1]));
             prop_assert!(occ.gap.unwrap_or(-1.0) > 0.0);
         }

@@ -59,13 +59,13 @@ pub fn assemble(
         .map(|(l, psi)| observables::summarise(l.n, &x, &v, psi, h, l.energy))
         .collect();
     let first_n = first0 + 1;
-    let (occupancy, skipped_filling) = fill(model, &energies, first_n)?;
+    let (mut occupancy, skipped_filling) = fill(model, &energies, first_n)?;
     let occupations: Vec<f64> = occupancy
         .as_ref()
         .map(|o| o.occupations.clone())
         .unwrap_or_default();
     let ring = grid.boundary == Boundary::Periodic;
-    let transitions = if occupancy.is_none() && !model.spectrum.all_pairs {
+    let mut transitions = if occupancy.is_none() && !model.spectrum.all_pairs {
         vec![]
     } else if ring {
         ring_transitions(
@@ -88,6 +88,12 @@ pub fn assemble(
             model.spectrum.all_pairs,
         )
     };
+    // An open shell: no zero-energy excitation inside the HOMO's group; the
+    // lowest allowed one is named instead of a gap.
+    if let Some(o) = occupancy.as_mut() {
+        transitions.retain(|t| o.keeps(t));
+        o.name_lowest(&transitions);
+    }
     let sum_rule = (first_n == 1 && !ring && levels.len() > 1)
         .then(|| observables::trk_sum(&x, &psis, &energies, h, kinetic, 0));
     let edge_report = EdgeReport {
@@ -103,7 +109,14 @@ pub fn assemble(
         rounding.scale,
     ));
     warnings.extend(skipped_filling);
+    warnings.extend(model.warnings.iter().cloned());
+    warnings.extend(
+        occupancy
+            .as_ref()
+            .and_then(|o| o.open_shell_warning(&model.units)),
+    );
     warnings.extend(jump_warning(model, &edge_report));
+    let huckel = huckel(model, &mut warnings)?;
     let roundoff = roundoff_floor(model, grid, &v);
     Ok(Solution {
         grid: grid.clone(),
@@ -119,6 +132,7 @@ pub fn assemble(
         occupancy,
         transitions,
         sum_rule,
+        huckel,
         diagnostics: Diagnostics {
             residual_ratio: info.residual_ratio,
             orthogonality_ratio: info.orthogonality_ratio,
@@ -158,6 +172,37 @@ fn fill(
         )),
         Err(err) => Err(err.into()),
     }
+}
+
+/// The Hückel levels of the model's atoms, filled with its electrons; a
+/// count the Hückel levels cannot hold (a LUMO is needed) leaves them
+/// unfilled, with a warning.
+fn huckel(
+    model: &Model,
+    warnings: &mut Vec<String>,
+) -> Result<Option<observables::Huckel>, SolveError> {
+    let Some(spec) = &model.huckel else {
+        return Ok(None);
+    };
+    let solved = match observables::huckel::solve(spec, model.levels.electrons) {
+        Err(observables::HuckelError::Occupancy(e)) => {
+            warnings.push(format!("Hückel levels left unfilled: {e}"));
+            observables::huckel::solve(spec, None)
+        }
+        other => other,
+    };
+    let h = solved.map_err(|e| match e {
+        observables::HuckelError::Eigen(e) => SolveError::Eigen(e),
+        observables::HuckelError::Occupancy(e) => SolveError::from(e),
+    })?;
+    if let Some(w) = h
+        .occupancy
+        .as_ref()
+        .and_then(|o| o.open_shell_warning(&model.units))
+    {
+        warnings.push(format!("Hückel levels: {w}"));
+    }
+    Ok(Some(h))
 }
 
 /// Transitions on a ring of radius `R = L / 2 pi`: the dipole of a planar

@@ -225,10 +225,10 @@ fn chain_cell_potential(model: &Model, c: &ChainSpec) -> (Potential, Vec<String>
     let (_, mut terms) = chain::build(&ripple_only);
     terms.extend(user_terms);
     let mut notes = Vec::new();
-    if !c.sites.is_empty() {
+    let with_potential = c.sites.iter().filter(|s| s.height != 0.0).count();
+    if with_potential > 0 {
         notes.push(format!(
-            "the chain's {} site(s) are not periodic and are left out of the cell (bands describe the repeating chain only)",
-            c.sites.len()
+            "the chain's {with_potential} site(s) are not periodic and are left out of the cell (bands describe the repeating chain only)"
         ));
     }
     (Potential { terms }, notes)

@@ -59,6 +59,35 @@ pub struct OccupancyRecord {
     /// Whether every occupied level was computed (else `total_energy` is
     /// partial).
     pub total_energy_complete: bool,
+    /// What set the electron count: `levels.electrons` (written) or `chain`
+    /// (the atoms' contributions less the charge).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub electrons_from: Option<String>,
+    /// Whether the HOMO's degenerate group is not full (a radical, or a
+    /// partly filled degenerate group: then `gap` is null).
+    #[serde(default)]
+    pub open_shell: bool,
+    /// The levels of the HOMO's degenerate group, when it has more than one.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub homo_group: Option<Vec<usize>>,
+    /// For an open shell without a gap: the lowest allowed excitation.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub lowest_allowed: Option<ExcitationRecord>,
+}
+
+/// An excitation, in the input's units.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ExcitationRecord {
+    /// Lower level.
+    pub from: usize,
+    /// Upper level.
+    pub to: usize,
+    /// Energy.
+    pub energy: f64,
+    /// `hc / energy`, nm.
+    pub wavelength_nm: f64,
+    /// Oscillator strength.
+    pub strength: f64,
 }
 
 /// The levels of a solution as records.
@@ -91,5 +120,26 @@ pub fn occupancy_record(model: &Model, o: &Occupancy) -> OccupancyRecord {
         wavelength_nm: o.wavelength_nm,
         total_energy: u.energy_out(o.total_energy),
         total_energy_complete: o.total_energy_complete,
+        electrons_from: Some(electrons_from(model).to_string()),
+        open_shell: o.open_shell,
+        homo_group: (o.homo_group.len() > 1).then(|| o.homo_group.clone()),
+        lowest_allowed: o.lowest_allowed.map(|x| ExcitationRecord {
+            from: x.from,
+            to: x.to,
+            energy: u.energy_out(x.energy),
+            wavelength_nm: x.wavelength_nm,
+            strength: x.strength,
+        }),
+    }
+}
+
+/// What set a model's electron count: `"levels.electrons"` when written
+/// (in the file or by `--set`), `"chain"` when counted from a chain's atoms
+/// and charge.
+pub fn electrons_from(model: &Model) -> &'static str {
+    if model.chain.is_some() && !model.levels.electrons_given {
+        "chain"
+    } else {
+        "levels.electrons"
     }
 }

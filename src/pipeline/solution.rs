@@ -95,6 +95,8 @@ pub struct Solution {
     pub edges: EdgeReport,
     /// How the grid was refined to a tolerance, when one was asked for.
     pub refinement: Option<Refinement>,
+    /// The Hückel levels of the same atoms, when the input has `[huckel]`.
+    pub huckel: Option<crate::observables::Huckel>,
     /// What the user should know.
     pub warnings: Vec<String>,
     /// Seconds spent.

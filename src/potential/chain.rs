@@ -10,6 +10,15 @@
 //! converges (H. Kuhn, J. Chem. Phys. 17, 1198 (1949) introduced the
 //! sinusoidal correction). The ripple covers the whole box, which keeps V(x)
 //! smooth inside it; it vanishes at every atom position.
+//!
+//! # Counting pi electrons
+//! Every atom gives one pi electron unless a site says otherwise (an amine-
+//! or pyrrole-type nitrogen, an ether oxygen: two; a boron: none), and the
+//! net charge is taken away: `electrons = sum of contributions - charge`.
+//! For the symmetric cyanine cation R2N-(CH=CH)k-CH=NR2+ of `2k + 3` atoms,
+//! both nitrogens giving two and `charge = 1`, that is `2k + 4`, one more
+//! than the atoms: the count that makes the free-electron model work for
+//! these dyes (H. Kuhn, J. Chem. Phys. 17, 1198 (1949)).
 
 use serde::Serialize;
 
@@ -25,6 +34,8 @@ pub struct Site {
     pub height: f64,
     /// Standard deviation, Å.
     pub width: f64,
+    /// Pi electrons the atom gives, when the site says (else 1).
+    pub electrons: Option<usize>,
 }
 
 /// `[chain]`, checked: kept beside the terms it made, for reports and for
@@ -45,6 +56,8 @@ pub struct ChainSpec {
     pub end_cap_width: f64,
     /// Heteroatom or substituent sites.
     pub sites: Vec<Site>,
+    /// Net charge in units of e (positive: electrons removed).
+    pub charge: i64,
 }
 
 impl ChainSpec {
@@ -55,6 +68,21 @@ impl ChainSpec {
     /// Box length `bonds * bond_length + 2 * end_extension`, Å.
     pub fn box_length(&self) -> f64 {
         self.bonds as f64 * self.bond_length + 2.0 * self.end_extension
+    }
+    /// Pi electrons the atoms give before the charge: one per atom, or what
+    /// a site on the atom says.
+    pub fn contributions(&self) -> usize {
+        let extra: i64 = self
+            .sites
+            .iter()
+            .filter_map(|s| s.electrons.map(|e| e as i64 - 1))
+            .sum();
+        (self.atoms() as i64 + extra).max(0) as usize
+    }
+    /// Pi electrons of the chain, `contributions - charge` (may be zero or
+    /// negative for an impossible charge; the input checker refuses that).
+    pub fn electrons(&self) -> i64 {
+        self.contributions() as i64 - self.charge
     }
     /// Position of atom `a` (1-based), Å from the left end of the box.
     pub fn atom_position(&self, a: usize) -> f64 {
@@ -95,7 +123,8 @@ pub fn build(chain: &ChainSpec) -> (Domain, Vec<Term>) {
             height: chain.end_cap_height,
         });
     }
-    for site in &chain.sites {
+    // A site that only sets its electrons has no potential.
+    for site in chain.sites.iter().filter(|s| s.height != 0.0) {
         terms.push(Term::Gauss {
             center: chain.atom_position(site.atom),
             height: site.height,
@@ -122,7 +151,9 @@ mod tests {
                 atom: 3,
                 height: -1.0,
                 width: 0.4,
+                electrons: None,
             }],
+            charge: 0,
         }
     }
 
@@ -164,5 +195,40 @@ mod tests {
             panic!("expected the site's Gaussian second");
         };
         assert_abs_diff_eq!(center, 1.4 + 2.0 * 1.4, epsilon = 1e-12);
+    }
+
+    #[test]
+    fn electrons_are_the_atoms_contributions_less_the_charge() {
+        // A streptocyanine R2N-CH=CH-CH=NR2+ (k = 1): 5 atoms, both
+        // nitrogens give two pi electrons, charge +1: 6 pi electrons
+        // (H. Kuhn, J. Chem. Phys. 17, 1198 (1949)).
+        let n = |atom| Site {
+            atom,
+            height: 0.0,
+            width: 0.5,
+            electrons: Some(2),
+        };
+        let c = ChainSpec {
+            bonds: 4,
+            alternation: 0.0,
+            sites: vec![n(1), n(5)],
+            charge: 1,
+            ..hexatriene_like()
+        };
+        assert_eq!(c.contributions(), 7);
+        assert_eq!(c.electrons(), 6);
+        // Sites that only set electrons add no potential.
+        let (_, terms) = build(&c);
+        assert!(terms.is_empty());
+        // A boron-like site giving none, and an anion.
+        let b = ChainSpec {
+            sites: vec![Site {
+                electrons: Some(0),
+                ..n(3)
+            }],
+            charge: -1,
+            ..c
+        };
+        assert_eq!(b.electrons(), 4 - 1 + 1);
     }
 }

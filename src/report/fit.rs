@@ -24,10 +24,18 @@ pub fn fit_document(fit: &FitResult, units: &Value, input: &Value) -> Value {
         "reduced_chi2": if fit.dof > 0 { Some(fit.chi2 / fit.dof as f64) } else { None },
         "evaluations": fit.evaluations,
         "termination": fit.termination,
-        "rows": fit.rows.iter().map(|r| json!({
-            "value": r.value.to_json(), "observed": r.observed, "model": r.model,
-            "residual": r.model - r.observed, "uncertainty": r.uncertainty,
-        })).collect::<Vec<_>>(),
+        "rows": fit.rows.iter().map(|r| {
+            let mut row = json!({
+                "value": r.value.to_json(), "observed": r.observed, "model": r.model,
+                "residual": r.model - r.observed, "uncertainty": r.uncertainty,
+            });
+            if fit.keys.len() > 1 {
+                row["values"] = Value::Array(r.values.iter().map(|v| v.to_json()).collect());
+            }
+            row
+        }).collect::<Vec<_>>(),
+        "keys": fit.keys,
+        "warnings": fit.warnings,
         "curve": fit.curve.iter().map(|(x, y)| json!({"value": x, "model": y})).collect::<Vec<_>>(),
         "input": input,
     })
@@ -50,17 +58,22 @@ pub fn fit_table(fit: &FitResult) -> String {
         }
     }
     let q = fit.quantity.name();
+    out.push('\n');
+    for k in &fit.keys {
+        out.push_str(&format!("{k:>14}  "));
+    }
     out.push_str(&format!(
-        "\n{:>14}  {:>14}  {:>14}  {:>12}\n",
-        fit.key,
+        "{:>14}  {:>14}  {:>12}\n",
         format!("observed {q}"),
         "model",
         "residual"
     ));
     for r in &fit.rows {
+        for v in &r.values {
+            out.push_str(&format!("{:>14}  ", v.to_json().to_string()));
+        }
         out.push_str(&format!(
-            "{:>14}  {:>14.6}  {:>14.6}  {:>12.3e}\n",
-            r.value.to_json().to_string(),
+            "{:>14.6}  {:>14.6}  {:>12.3e}\n",
             r.observed,
             r.model,
             r.model - r.observed

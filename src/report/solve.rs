@@ -78,6 +78,9 @@ pub fn solve_document(
             json!({"from": 1, "value": sr.value, "levels_used": sr.levels_used, "completeness": sr.completeness}),
         );
     }
+    if let (Some(spec), Some(h)) = (&model.huckel, &sol.huckel) {
+        doc.insert("huckel".into(), huckel(model, spec, h));
+    }
     doc.insert("states".into(), states(model, sol));
     doc.insert(
         "diagnostics".into(),
@@ -92,6 +95,47 @@ pub fn solve_document(
     }
     doc.insert("input".into(), input_echo(model, source));
     Value::Object(doc)
+}
+
+/// The `huckel` object: the tight-binding picture of the same atoms,
+/// its parameters, `levels` (`n`, `energy`), `occupancy` and `transitions`
+/// as for the continuum levels.
+pub fn huckel(
+    model: &Model,
+    spec: &crate::observables::HuckelSpec,
+    h: &crate::observables::Huckel,
+) -> Value {
+    let u = &model.units;
+    let mut m = Map::new();
+    m.insert("atoms".into(), json!(spec.atoms));
+    m.insert("ring".into(), json!(spec.ring));
+    m.insert("alpha".into(), json!(u.energy_out(spec.alpha)));
+    m.insert("beta_double".into(), json!(u.energy_out(spec.beta_double)));
+    m.insert("beta_single".into(), json!(u.energy_out(spec.beta_single)));
+    m.insert(
+        "shifts".into(),
+        Value::Array(
+            spec.shifts
+                .iter()
+                .map(|(a, d)| json!({"atom": a, "alpha": u.energy_out(*d)}))
+                .collect(),
+        ),
+    );
+    m.insert(
+        "levels".into(),
+        Value::Array(
+            h.energies
+                .iter()
+                .enumerate()
+                .map(|(i, e)| json!({"n": i + 1, "energy": u.energy_out(*e)}))
+                .collect(),
+        ),
+    );
+    if let Some(o) = &h.occupancy {
+        m.insert("occupancy".into(), occupancy(model, o));
+        m.insert("transitions".into(), transitions(model, &h.transitions));
+    }
+    Value::Object(m)
 }
 
 /// The `occupancy` object.

@@ -65,20 +65,18 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
     }
     if let Some(o) = &sol.occupancy {
         let _ = writeln!(s);
-        let mut line = format!("{} electrons: HOMO {}", o.electrons, o.homo);
-        if let Some(so) = o.singly_occupied {
-            let _ = write!(line, " (singly occupied: level {so})");
+        let _ = writeln!(s, "{}", occupancy_line(model, o));
+        if let Some(x) = &o.lowest_allowed {
+            let _ = writeln!(
+                s,
+                "open shell: no HOMO-LUMO gap; lowest allowed excitation {} -> {}: {:.6} {e}, wavelength {:.2} nm, strength {:.5}",
+                x.from,
+                x.to,
+                u.energy_out(x.energy),
+                x.wavelength_nm,
+                x.strength
+            );
         }
-        if let Some(l) = o.lumo {
-            let _ = write!(line, ", LUMO {l}");
-        }
-        if let Some(g) = o.gap {
-            let _ = write!(line, ", gap {:.6} {e}", u.energy_out(g));
-        }
-        if let Some(w) = o.wavelength_nm {
-            let _ = write!(line, ", wavelength {w:.2} nm");
-        }
-        let _ = writeln!(s, "{line}");
     }
     if !sol.transitions.is_empty() {
         let _ = writeln!(s);
@@ -107,6 +105,9 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             );
         }
     }
+    if let (Some(spec), Some(h)) = (&model.huckel, &sol.huckel) {
+        huckel_section(&mut s, model, spec, h);
+    }
     if let Some(sr) = &sol.sum_rule {
         let _ = writeln!(
             s,
@@ -127,6 +128,108 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
         sol.timing.solve_s
     );
     crate::report::no_negative_zero(&s)
+}
+
+/// The Hückel levels beside: parameters, levels near the frontier, the
+/// filling and the strongest frontier transition.
+fn huckel_section(
+    s: &mut String,
+    model: &Model,
+    spec: &crate::observables::HuckelSpec,
+    h: &crate::observables::Huckel,
+) {
+    let u = &model.units;
+    let e = u.energy.label();
+    let _ = writeln!(s);
+    let betas = if spec.beta_double == spec.beta_single {
+        format!("beta {} {e}", u.energy_out(spec.beta_double))
+    } else {
+        format!(
+            "beta_double {} {e}, beta_single {} {e}",
+            u.energy_out(spec.beta_double),
+            u.energy_out(spec.beta_single)
+        )
+    };
+    let _ = writeln!(
+        s,
+        "Hückel picture: {} atoms in a {}, alpha {} {e}, {betas}{}",
+        spec.atoms,
+        if spec.ring { "ring" } else { "chain" },
+        u.energy_out(spec.alpha),
+        if spec.shifts.is_empty() {
+            String::new()
+        } else {
+            format!(", {} heteroatom shift(s)", spec.shifts.len())
+        }
+    );
+    // The levels the continuum solve shows, or all of them.
+    let (first, count) = model.levels.window();
+    let shown = first.min(h.energies.len())..first.saturating_add(count).min(h.energies.len());
+    let _ = writeln!(s, "{:>5}  {:>18}", "n", format!("energy ({e})"));
+    for i in shown {
+        let _ = writeln!(s, "{:>5}  {:>18.10}", i + 1, u.energy_out(h.energies[i]));
+    }
+    if let Some(o) = &h.occupancy {
+        let _ = writeln!(s, "{}", occupancy_line(model, o));
+        if let Some(x) = &o.lowest_allowed {
+            let _ = writeln!(
+                s,
+                "open shell: lowest allowed excitation {} -> {}: {:.6} {e}, wavelength {:.2} nm",
+                x.from,
+                x.to,
+                u.energy_out(x.energy),
+                x.wavelength_nm
+            );
+        }
+    }
+}
+
+/// The filling in one line, with the rule that set the electron count.
+fn occupancy_line(model: &Model, o: &crate::observables::Occupancy) -> String {
+    let u = &model.units;
+    let e = u.energy.label();
+    let rule = match (&model.chain, model.levels.electrons_given) {
+        (Some(c), false) => {
+            let charge = match c.charge {
+                0 => String::new(),
+                q => format!(", charge {q:+}"),
+            };
+            format!(
+                " (counted from the chain: {} atoms giving {}{charge})",
+                c.atoms(),
+                c.contributions()
+            )
+        }
+        (Some(_), true) => " (levels.electrons)".to_string(),
+        (None, _) => String::new(),
+    };
+    let mut line = format!("{} electrons{rule}: HOMO {}", o.electrons, o.homo);
+    if o.homo_group.len() > 1 {
+        let _ = write!(
+            line,
+            " (degenerate with {}{})",
+            o.homo_group
+                .iter()
+                .filter(|&&n| n != o.homo)
+                .map(|n| n.to_string())
+                .collect::<Vec<_>>()
+                .join(", "),
+            if o.open_shell { ", open shell" } else { "" }
+        );
+    }
+    if let Some(so) = o.singly_occupied {
+        let _ = write!(line, " (singly occupied: level {so})");
+    }
+    if let Some(l) = o.lumo {
+        let _ = write!(line, ", LUMO {l}");
+    }
+    if let Some(g) = o.gap {
+        let _ = write!(line, ", gap {:.6} {e}", u.energy_out(g));
+    }
+    if let Some(w) = o.wavelength_nm {
+        let _ = write!(line, ", wavelength {w:.2} nm");
+    }
+    line
 }
 
 /// Plain-language lines on the degenerate levels of a ring.

@@ -1,8 +1,10 @@
 //! Measured series for fits: a small CSV reader.
 //!
-//! The header names one input key (a dotted key such as `chain.bonds`), one
-//! observed quantity (see [`Quantity`]) and optionally `uncertainty`, one
-//! standard deviation of each observation. Lines starting with `#` and blank
+//! The header names one or more input keys (dotted keys such as
+//! `chain.bonds`, `chain.charge`, `levels.electrons`), one observed quantity
+//! (see [`Quantity`]) and optionally `uncertainty`, one standard deviation
+//! of each observation. Each row sets every key it carries; the first key
+//! is the series' axis (reports and figures plot against it). Lines starting with `#` and blank
 //! lines are skipped; every fault names the file and line.
 
 use std::path::Path;
@@ -13,8 +15,11 @@ use super::quantity::Quantity;
 /// One row of the data file.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DataRow {
-    /// Value of the data's key.
+    /// Value of the data's first key (the series' axis).
     pub value: CaseValue,
+    /// Values of every key column, in the order of [`Data::keys`] (the
+    /// first is `value`).
+    pub values: Vec<CaseValue>,
     /// Observed quantity.
     pub observed: f64,
     /// Its uncertainty (one standard deviation), when given.
@@ -30,6 +35,8 @@ pub struct Data {
     pub file: String,
     /// The input key of the first column that is not a quantity.
     pub key: String,
+    /// Every key column, in the file's order (the first is `key`).
+    pub keys: Vec<String>,
     /// The observed quantity.
     pub quantity: Quantity,
     /// The rows.
@@ -102,7 +109,7 @@ impl Data {
             .next()
             .ok_or_else(|| err(0, "the file has no header".into()))?;
         let names: Vec<&str> = header.split(',').map(str::trim).collect();
-        let mut key_col = None;
+        let mut key_cols: Vec<usize> = Vec::new();
         let mut q_col = None;
         let mut u_col = None;
         for (i, n) in names.iter().enumerate() {
@@ -116,18 +123,24 @@ impl Data {
                     ));
                 }
                 q_col = Some((i, q));
-            } else if n.contains('.') && key_col.is_none() {
-                key_col = Some(i);
+            } else if n.contains('.') {
+                if let Some(&j) = key_cols.iter().find(|&&j| names[j] == *n) {
+                    return Err(err(
+                        hline,
+                        format!("the key `{n}` names columns {} and {}", j + 1, i + 1),
+                    ));
+                }
+                key_cols.push(i);
             } else {
                 return Err(err(hline, format!("column `{n}` is neither an input key (such as chain.bonds), a quantity (gap, wavelength_nm, homo, lumo, energy.N) nor `uncertainty`")));
             }
         }
-        let key_col = key_col.ok_or_else(|| {
-            err(
+        if key_cols.is_empty() {
+            return Err(err(
                 hline,
                 "no column names an input key (such as chain.bonds)".into(),
-            )
-        })?;
+            ));
+        }
         let (q_col, quantity) = q_col.ok_or_else(|| {
             err(
                 hline,
@@ -155,10 +168,13 @@ impl Data {
                         )
                     })
             };
-            let value = match cells[key_col].parse::<i64>() {
-                Ok(i) => CaseValue::Int(i),
-                Err(_) => CaseValue::Float(num(key_col)?),
-            };
+            let values = key_cols
+                .iter()
+                .map(|&c| match cells[c].parse::<i64>() {
+                    Ok(i) => Ok(CaseValue::Int(i)),
+                    Err(_) => num(c).map(CaseValue::Float),
+                })
+                .collect::<Result<Vec<_>, _>>()?;
             let uncertainty = match u_col {
                 Some(c) => {
                     let s = num(c)?;
@@ -170,7 +186,8 @@ impl Data {
                 None => None,
             };
             rows.push(DataRow {
-                value,
+                value: values[0],
+                values,
                 observed: num(q_col)?,
                 uncertainty,
                 line,
@@ -181,7 +198,8 @@ impl Data {
         }
         Ok(Self {
             file,
-            key: names[key_col].to_string(),
+            key: names[key_cols[0]].to_string(),
+            keys: key_cols.iter().map(|&c| names[c].to_string()).collect(),
             quantity,
             rows,
         })
@@ -224,6 +242,26 @@ mod tests {
         assert_eq!(Data::parse("series", text).unwrap(), from_file);
         let e = Data::parse("series", "chain.bonds,gap\n3,x\n").unwrap_err();
         assert_eq!((e.file.as_str(), e.line), ("series", 2));
+    }
+
+    #[test]
+    fn several_key_columns_set_every_key_of_a_row() {
+        let d = read("chain.bonds,levels.electrons,chain.end_extension,wavelength_nm\n4,6,1.5,300\n6,8,1.5,400\n").unwrap();
+        assert_eq!(d.key, "chain.bonds");
+        assert_eq!(
+            d.keys,
+            ["chain.bonds", "levels.electrons", "chain.end_extension"]
+        );
+        assert_eq!(d.quantity, Quantity::WavelengthNm);
+        assert_eq!(
+            d.rows[1].values,
+            [CaseValue::Int(6), CaseValue::Int(8), CaseValue::Float(1.5)]
+        );
+        assert_eq!(d.rows[1].value, CaseValue::Int(6));
+        let e = read("chain.bonds,chain.bonds,gap\n3,3,1\n").unwrap_err();
+        assert!(e.message.contains("columns 1 and 2"), "{e}");
+        let e = read("chain.bonds,levels.electrons,gap\n3,x,1\n").unwrap_err();
+        assert!(e.message.contains("levels.electrons"), "{e}");
     }
 
     #[test]

@@ -170,8 +170,10 @@ pub struct FitParameter {
 /// One data row with the fitted model.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FitRow {
-    /// The key's value.
+    /// The value of the data's first key.
     pub value: CaseValue,
+    /// The values of every key column (the first is `value`).
+    pub values: Vec<CaseValue>,
     /// Observed quantity.
     pub observed: f64,
     /// Model quantity at the fitted values.
@@ -183,8 +185,10 @@ pub struct FitRow {
 /// The result of a fit.
 #[derive(Debug, Clone, PartialEq)]
 pub struct FitResult {
-    /// The data's key.
+    /// The data's first key (the series' axis).
     pub key: String,
+    /// Every key column of the data (the first is `key`).
+    pub keys: Vec<String>,
     /// The observed quantity.
     pub quantity: Quantity,
     /// Fitted keys.
@@ -207,6 +211,9 @@ pub struct FitResult {
     /// the data's range, between the data as well as at them
     /// ([`super::curve`]), as (key value, model) pairs.
     pub curve: Vec<(f64, f64)>,
+    /// What the user should know about the fitted values (an implausible
+    /// or negative alternation, ...), each text once.
+    pub warnings: Vec<String>,
 }
 
 /// Values of the key at which the fitted model is evaluated for its curve.
@@ -286,10 +293,16 @@ struct Problem<'a> {
 }
 
 fn overrides_for(spec: &FitSpec, p: &[f64], row: &DataRow) -> Vec<Override> {
-    let mut v = vec![Override {
-        key: spec.data.key.clone(),
-        value: row.value.toml_text(),
-    }];
+    let mut v: Vec<Override> = spec
+        .data
+        .keys
+        .iter()
+        .zip(&row.values)
+        .map(|(key, value)| Override {
+            key: key.clone(),
+            value: value.toml_text(),
+        })
+        .collect();
     v.extend(spec.free.iter().zip(p).map(|(f, x)| Override {
         key: f.key.clone(),
         value: format!("{x:?}"),
@@ -595,11 +608,22 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         source: Box::new(source),
     })?;
     check_determined(spec, &j)?;
-    let curve =
+    // With several key columns a row sets keys the curve's abscissa alone
+    // cannot interpolate (electrons with bonds, say): the model is then
+    // drawn through its values at the data only.
+    let curve = if spec.data.keys.len() > 1 {
+        spec.data
+            .rows
+            .iter()
+            .zip(&model)
+            .map(|(r, m)| (r.value.as_f64(), *m))
+            .collect()
+    } else {
         super::curve::curve(spec, &p, CURVE_POINTS, stop).map_err(|_| FitError::Interrupted {
             best: p.clone(),
             evaluations: evals,
-        })?;
+        })?
+    };
     let w = weights(spec);
     let chi2: f64 = model
         .iter()
@@ -631,8 +655,11 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         .sum::<f64>()
         / m as f64)
         .sqrt();
+    let warnings = fitted_warnings(spec, &p);
     Ok(FitResult {
         key: spec.data.key.clone(),
+        keys: spec.data.keys.clone(),
+        warnings,
         quantity: spec.data.quantity,
         parameters: spec
             .free
@@ -654,6 +681,7 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
             .zip(&model)
             .map(|(r, &m)| FitRow {
                 value: r.value,
+                values: r.values.clone(),
                 observed: r.observed,
                 model: m,
                 uncertainty: r.uncertainty,
@@ -666,6 +694,25 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         termination: termination_word(&report.termination),
         curve,
     })
+}
+
+/// The input's plausibility warnings at the fitted values `p` over every
+/// data row, each text once in the order first met (a fitted negative
+/// alternation, a box reaching far past the chain).
+fn fitted_warnings(spec: &FitSpec, p: &[f64]) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for row in &spec.data.rows {
+        let mut ovs = spec.overrides.clone();
+        ovs.extend(overrides_for(spec, p, row));
+        if let Ok((model, _)) = spec.document.model(&ovs) {
+            for w in model.warnings {
+                if !out.contains(&w) {
+                    out.push(w);
+                }
+            }
+        }
+    }
+    out
 }
 
 #[cfg(test)]

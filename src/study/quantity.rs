@@ -35,6 +35,14 @@ pub enum QuantityError {
         "{0} needs the electron count: the input gives no levels.electrons and is not a chain"
     )]
     NoOccupancy(&'static str),
+    /// The HOMO shares a degenerate group with room left: no gap.
+    #[error("{what}: levels {levels} are degenerate and partly filled (an open shell), so there is no HOMO-LUMO gap; fit energy.N or another electron count")]
+    OpenShell {
+        /// The quantity asked for.
+        what: &'static str,
+        /// The group, as `6-7`.
+        levels: String,
+    },
     /// The level was not computed.
     #[error("level {0} was not computed; raise levels.count or lower levels.first")]
     NotComputed(usize),
@@ -83,15 +91,21 @@ impl Quantity {
                 .as_ref()
                 .ok_or(QuantityError::NoOccupancy(what))
         };
-        match self {
-            Quantity::Gap => {
-                let o = occ("gap")?;
-                let g = o.gap.ok_or(QuantityError::NotComputed(o.homo + 1))?;
-                Ok(u.energy_out(g))
+        let gap = |what: &'static str| {
+            let o = occ(what)?;
+            match (o.gap, o.open_shell) {
+                (Some(g), _) => Ok((o, g)),
+                (None, true) => Err(QuantityError::OpenShell {
+                    what,
+                    levels: format!("{}-{}", o.homo_group.first().unwrap_or(&o.homo), o.homo),
+                }),
+                (None, false) => Err(QuantityError::NotComputed(o.homo + 1)),
             }
+        };
+        match self {
+            Quantity::Gap => Ok(u.energy_out(gap("gap")?.1)),
             Quantity::WavelengthNm => {
-                let o = occ("wavelength_nm")?;
-                o.gap.ok_or(QuantityError::NotComputed(o.homo + 1))?;
+                let (o, _) = gap("wavelength_nm")?;
                 Ok(o.wavelength_nm.unwrap_or(f64::INFINITY))
             }
             Quantity::Homo => Ok(u.energy_out(level(occ("homo")?.homo)?)),

@@ -6,6 +6,22 @@ use crate::input::model::*;
 use crate::input::raw::RawChain;
 use crate::potential::chain::{ChainSpec, Site};
 
+/// Bond lengths of conjugated chains, Å: from a triple bond (about 1.20 Å)
+/// to a single C–C or C–N bond (about 1.54 and 1.47 Å), with a little
+/// room (from memory). Outside this range the length is more likely in
+/// another unit than a real chain.
+pub const PLAUSIBLE_BOND_LENGTH: (f64, f64) = (1.2, 1.6);
+/// Alternation amplitude above which a warning is given, eV: a few eV, far
+/// above the ripple that fits polyene spectra (common practice, no source).
+pub const PLAUSIBLE_ALTERNATION_EV: f64 = 3.0;
+/// Site height above which a warning is given, eV (common practice, no
+/// source).
+pub const PLAUSIBLE_SITE_HEIGHT_EV: f64 = 5.0;
+/// End extension, in bond lengths, above which a warning is given: Kuhn's
+/// box reaches about one bond past each terminal atom (H. Kuhn, J. Chem.
+/// Phys. 17, 1198 (1949)); three is generous.
+pub const PLAUSIBLE_END_EXTENSION_BONDS: f64 = 3.0;
+
 impl Checker<'_> {
     pub(super) fn check_chain(&self, c: &RawChain) -> Result<ChainSpec> {
         let bonds = self.count(&c.bonds, "chain.bonds", 1)?;
@@ -54,30 +70,59 @@ impl Checker<'_> {
             }
             None => 0.0,
         };
-        let mut sites = Vec::new();
+        let atoms = bonds + 1;
+        let mut sites: Vec<Site> = Vec::new();
         for (i, s) in c.site.iter().flatten().enumerate() {
             let key = |k: &str| format!("chain.site[{}].{k}", i + 1);
             let raw = s.get_ref();
-            let atom = self.count(&raw.atom, &key("atom"), 1)?;
-            if atom > bonds + 1 {
-                return Err(self.err(
-                    raw.atom.span(),
-                    &key("atom"),
-                    format!("the chain has atoms 1 to {}, got {atom}", bonds + 1),
-                ));
-            }
-            let height = self.energy(&raw.height, &key("height"))?;
+            let atom = self.atom(&raw.atom, &key("atom"), atoms)?;
+            let height = match &raw.height {
+                Some(h) => self.energy(h, &key("height"))?,
+                None => 0.0,
+            };
             let width = match &raw.width {
                 Some(w) => self.units.length_in(self.positive(w, &key("width"))?),
                 None => DEFAULT_SITE_WIDTH,
+            };
+            let electrons = match &raw.electrons {
+                Some(e) => {
+                    let n = self.count(e, &key("electrons"), 0)?;
+                    if n > 2 {
+                        return Err(self.err(
+                            e.span(),
+                            &key("electrons"),
+                            format!("an atom gives 0, 1 or 2 pi electrons, got {n}"),
+                        ));
+                    }
+                    if let Some(j) = sites
+                        .iter()
+                        .position(|o| o.atom == atom && o.electrons.is_some())
+                    {
+                        return Err(self.err(
+                            e.span(),
+                            &key("electrons"),
+                            format!(
+                                "chain.site[{}] already sets the electrons of atom {atom}",
+                                j + 1
+                            ),
+                        ));
+                    }
+                    Some(n)
+                }
+                None => None,
             };
             sites.push(Site {
                 atom,
                 height,
                 width,
+                electrons,
             });
         }
-        Ok(ChainSpec {
+        let charge = match &c.charge {
+            Some(q) => *q.get_ref(),
+            None => 0,
+        };
+        let spec = ChainSpec {
             bonds,
             bond_length,
             end_extension,
@@ -85,7 +130,96 @@ impl Checker<'_> {
             end_cap_height,
             end_cap_width,
             sites,
-        })
+            charge,
+        };
+        // Between one pi electron and two per atom (a full pi shell).
+        let electrons = spec.electrons();
+        if electrons < 1 || electrons > 2 * atoms as i64 {
+            let (span, key) = match &c.charge {
+                Some(q) => (q.span(), "chain.charge"),
+                None => (c.bonds.span(), "chain.site"),
+            };
+            return Err(self.err(
+                span,
+                key,
+                format!(
+                    "the chain's {atoms} atoms give {} pi electrons and its charge is {charge}: that leaves {electrons}, but a chain holds 1 to {} (two per atom)",
+                    spec.contributions(),
+                    2 * atoms
+                ),
+            ));
+        }
+        Ok(spec)
+    }
+
+    /// Warnings, each naming its key, about chain values that pass the
+    /// checks but are unlikely for a conjugated chain.
+    pub(super) fn chain_warnings(&self, c: &ChainSpec) -> Vec<String> {
+        let u = &self.units;
+        let (l, e) = (u.length.label(), u.energy.label());
+        let mut out = Vec::new();
+        let (lo, hi) = PLAUSIBLE_BOND_LENGTH;
+        if !(lo..=hi).contains(&c.bond_length) {
+            out.push(format!(
+                "chain.bond_length = {} {l} is outside {} to {} {l}, the bond lengths of conjugated chains: is it written in another unit? (a bond of 1.4 Å is 0.14 nm; [units] length = \"nm\" reads lengths in nm)",
+                u.length_out(c.bond_length),
+                u.length_out(lo),
+                u.length_out(hi)
+            ));
+        }
+        if c.end_extension > PLAUSIBLE_END_EXTENSION_BONDS * c.bond_length {
+            out.push(format!(
+                "chain.end_extension = {} {l} is more than {PLAUSIBLE_END_EXTENSION_BONDS} bond lengths: the box reaches far beyond the terminal atoms (about one bond is usual)",
+                u.length_out(c.end_extension)
+            ));
+        }
+        if c.alternation.abs() > PLAUSIBLE_ALTERNATION_EV {
+            out.push(format!(
+                "chain.alternation = {} {e} is beyond a few eV ({} {e}): the ripple then dominates the box and the electrons sit in separate wells",
+                u.energy_out(c.alternation),
+                u.energy_out(PLAUSIBLE_ALTERNATION_EV)
+            ));
+        }
+        if c.alternation < 0.0 {
+            out.push(format!(
+                "chain.alternation = {} {e} is negative: the ripple's minima (the double bonds) then sit on bonds 2, 4, 6, ... instead of 1, 3, 5, ...; with an even number of bonds the two patterns are mirror images with the same levels, so a fit may return either sign",
+                u.energy_out(c.alternation)
+            ));
+        }
+        for (i, s) in c.sites.iter().enumerate() {
+            if s.height.abs() > PLAUSIBLE_SITE_HEIGHT_EV {
+                out.push(format!(
+                    "chain.site[{}].height = {} {e} is beyond a few eV ({} {e}): a well or barrier that deep dominates the chain",
+                    i + 1,
+                    u.energy_out(s.height),
+                    u.energy_out(PLAUSIBLE_SITE_HEIGHT_EV)
+                ));
+            }
+        }
+        out
+    }
+
+    /// A 1-based atom number of a chain of `atoms` atoms; a negative number
+    /// counts from the right end (−1 is the last atom).
+    pub(super) fn atom(
+        &self,
+        v: &crate::input::raw::Int,
+        key: &str,
+        atoms: usize,
+    ) -> Result<usize> {
+        let a = *v.get_ref();
+        let n = atoms as i64;
+        let resolved = if a < 0 { n + 1 + a } else { a };
+        if a == 0 || resolved < 1 || resolved > n {
+            return Err(self.err(
+                v.span(),
+                key,
+                format!(
+                    "the atoms are numbered 1 to {atoms} (or -1 to -{atoms} from the right end), got {a}"
+                ),
+            ));
+        }
+        Ok(resolved as usize)
     }
 }
 

@@ -4,12 +4,13 @@
 //! Every value is range-checked here, converted to internal units, and every
 //! fault is reported with the location of the value at fault. One file per
 //! part of the input: `grid` (`[domain]`, `[grid]`), `levels` (`[levels]`,
-//! `[spectrum]`), `chain` (`[chain]`) and `terms` (`[[term]]`, formulas and
-//! tables among them); this file holds the entry point, `[units]`,
+//! `[spectrum]`), `chain` (`[chain]`), `huckel` (`[huckel]`) and `terms`
+//! (`[[term]]`, formulas and tables among them); this file holds the entry point, `[units]`,
 //! `[particle]` and the shared value checks.
 
 mod chain;
 mod grid;
+mod huckel;
 mod levels;
 mod terms;
 
@@ -23,7 +24,6 @@ use super::error::{InputError, Location, SourceText};
 use super::model::*;
 use super::raw::*;
 use super::tables::TableCache;
-use crate::potential::chain::ChainSpec;
 use crate::potential::Potential;
 use crate::units::{EnergyUnit, LengthUnit, Units};
 
@@ -142,9 +142,15 @@ impl<'a> Checker<'a> {
         }
         let grid = self.check_grid(raw.grid.as_ref(), &domain)?;
         self.check_grid_fits(&grid, &domain, &raw)?;
-        let electrons_default = chain.as_ref().map(ChainSpec::atoms);
+        // The chain's own count (checked to be at least 1); an explicit
+        // levels.electrons wins.
+        let electrons_default = chain.as_ref().map(|c| c.electrons().max(1) as usize);
         let levels = self.check_levels(raw.levels.as_ref(), electrons_default)?;
         let spectrum = self.check_spectrum(raw.spectrum.as_ref())?;
+        let huckel = match &raw.huckel {
+            Some(h) => Some(self.check_huckel(h, chain.as_ref(), &domain)?),
+            None => None,
+        };
         let mut key_locations = BTreeMap::new();
         let mut note = |key: &str, span: Option<Range<usize>>| {
             if let Some(span) = span {
@@ -180,7 +186,13 @@ impl<'a> Checker<'a> {
             "grid.spacing",
             gr.and_then(|g| g.spacing.as_ref().map(Spanned::span)),
         );
+        let mut warnings = Vec::new();
+        if let Some(c) = &chain {
+            warnings.extend(self.chain_warnings(c));
+        }
         Ok(Model {
+            warnings,
+            huckel,
             title: raw.title.map(Spanned::into_inner),
             units: self.units,
             mass,
