@@ -7,11 +7,15 @@
 //! gets), plus numpy arrays where they are useful. The pure-Python half
 //! (`chainwell/__init__.py`) builds the user's objects from these.
 //!
+//! Sweeps and fits stop at Ctrl-C (a notebook's interrupt) and raise
+//! `KeyboardInterrupt`; see [`interrupt`].
+//!
 //! Errors: a fault in the input or in an argument raises `InputError` (a
 //! `ValueError`) whose text is the message the command line prints on
 //! stderr; a computation that cannot finish raises `RuntimeError`.
 
 mod errors;
+mod interrupt;
 mod solve;
 mod source;
 mod studies;

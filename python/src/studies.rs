@@ -3,6 +3,7 @@
 //! the `--csv` files hold (from the same builders, so neither can drift).
 
 use std::path::PathBuf;
+use std::sync::atomic::AtomicBool;
 
 use chainwell::input::{Document, Override};
 use chainwell::pipeline::Fault;
@@ -18,6 +19,7 @@ use pyo3::types::PyDict;
 use serde_json::{json, Value};
 
 use crate::errors::to_pyerr;
+use crate::interrupt;
 use crate::source::{overrides, Source};
 
 fn text(doc: &Value) -> Result<String, Fault> {
@@ -38,7 +40,12 @@ fn hand_back<'py>(
     Ok(out)
 }
 
-fn run_sweep(source: &Source, vary: &[String], sets: &[String]) -> Result<(String, String), Fault> {
+fn run_sweep(
+    source: &Source,
+    vary: &[String],
+    sets: &[String],
+    stop: &AtomicBool,
+) -> Result<(String, String), Fault> {
     let overrides = overrides(sets)?;
     if vary.is_empty() {
         return Err(Fault::Usage(
@@ -59,7 +66,7 @@ fn run_sweep(source: &Source, vary: &[String], sets: &[String]) -> Result<(Strin
         shard: None,
     };
     let prepared = sweep_study::prepare(&spec).map_err(|e| sweep_study::locate_error(&spec, e))?;
-    let result = sweep_study::run(&prepared, Vec::new(), &Runner::new())
+    let result = sweep_study::run(&prepared, Vec::new(), &Runner::new().with_stop(stop))
         .map_err(|e| sweep_study::locate_error(&spec, e))?;
     let json = text(&report::sweep::sweep_document(&result))?;
     Ok((json, report::sweep::sweep_csv(&result)))
@@ -80,9 +87,13 @@ pub fn sweep<'py>(
     set: Vec<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let source = Source::new(text, path, name)?;
-    let (json, csv) = py
-        .detach(|| run_sweep(&source, &vary, &set))
-        .map_err(|f| to_pyerr(py, f))?;
+    let stop = AtomicBool::new(false);
+    let (result, interrupted) =
+        interrupt::run(py, &stop, || run_sweep(&source, &vary, &set, &stop))?;
+    if let Some(e) = interrupted {
+        return Err(e);
+    }
+    let (json, csv) = result.map_err(|f| to_pyerr(py, f))?;
     hand_back(py, json, Some(csv), Vec::new())
 }
 
@@ -197,6 +208,7 @@ fn run_fit(
     free: &[String],
     bounds: &[Bound3],
     sets: &[String],
+    stop: &AtomicBool,
 ) -> Result<String, Fault> {
     let overrides = overrides(sets)?;
     let document = source.document()?;
@@ -224,7 +236,7 @@ fn run_fit(
         data,
         free,
     };
-    let r = fit_study::fit(&spec, &Runner::new()).map_err(fit_fault)?;
+    let r = fit_study::fit(&spec, &Runner::new().with_stop(stop)).map_err(fit_fault)?;
     text(&report::fit::fit_document(&r, &units, &input))
 }
 
@@ -260,9 +272,14 @@ pub fn fit<'py>(
             ))
         }
     };
-    let json = py
-        .detach(|| run_fit(&source, &data, &free, &bounds, &set))
-        .map_err(|f| to_pyerr(py, f))?;
+    let stop = AtomicBool::new(false);
+    let (result, interrupted) = interrupt::run(py, &stop, || {
+        run_fit(&source, &data, &free, &bounds, &set, &stop)
+    })?;
+    if let Some(e) = interrupted {
+        return Err(e);
+    }
+    let json = result.map_err(|f| to_pyerr(py, f))?;
     hand_back(py, json, None, Vec::new())
 }
 

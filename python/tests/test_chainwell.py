@@ -96,6 +96,23 @@ def test_the_first_wavefunction_is_normalised_on_the_grid():
     np.testing.assert_allclose(overlap, np.eye(5), atol=1e-10)
 
 
+def test_a_dict_with_terms_gives_the_harmonic_oscillator():
+    # [[term]] as a list of dicts. E_n = (n - 1/2) hbar omega for levels
+    # n = 1, 2, ..., omega = sqrt(k / m) (Griffiths eq. 2.61, counted from 1).
+    well = {
+        "domain": {"from": -12.0, "to": 12.0},
+        "grid": {"points": 2400, "order": 8},
+        "levels": {"count": 4},
+        "term": [{"shape": "harmonic", "center": 0.0, "stiffness": 1.0}],
+    }
+    sol = chainwell.solve(well)
+    k_si = 1.0 * ELEMENTARY_CHARGE_C / 1e-20  # eV/angstrom^2 to J/m^2
+    quantum_ev = HBAR_J_S * math.sqrt(k_si / ELECTRON_MASS_KG) / ELEMENTARY_CHARGE_C
+    expected = [(n - 0.5) * quantum_ev for n in range(1, 5)]
+    np.testing.assert_allclose(sol.energies, expected, rtol=1e-8)
+    assert "[[term]]" in sol.to_dict()["input"]["text"]
+
+
 def test_text_path_pathlike_and_dict_inputs_agree(tmp_path):
     text = (
         "[domain]\nfrom = 0.0\nto = 10.0\n[grid]\npoints = 1000\norder = 8\n"
@@ -193,29 +210,44 @@ def test_fit_recovers_the_value_that_made_the_data():
     # Data made by the model itself at chain.alternation = 0.7: the fit from
     # 0.5 must come back to 0.7 (a self-consistency check of the fit loop;
     # the model itself is checked against closed forms above).
-    made = chainwell.sweep(CHAIN, vary={"chain.bonds": [3, 5, 7, 9]}, set={"chain.alternation": 0.7, "levels.electrons": 6})
+    small = {"levels.count": 4, "levels.electrons": 6}
+    made = chainwell.sweep(
+        CHAIN, vary={"chain.bonds": [3, 5, 7, 9]}, set=dict(small, **{"chain.alternation": 0.7})
+    )
     data = {
         "chain.bonds": [r["value"] for r in made.rows],
         "energy.4": [r["levels"][3]["energy"] for r in made.rows],
     }
-    fitted = chainwell.fit(CHAIN, data, free="chain.alternation", set={"levels.electrons": 6})
+    fitted = chainwell.fit(CHAIN, data, free="chain.alternation", set=small)
     assert fitted.values["chain.alternation"] == pytest.approx(0.7, abs=1e-6)
     assert fitted.rms < 1e-8
     assert len(fitted) == 4
     assert fitted.to_dict()["format"] == "chainwell.fit/1"
 
 
-def test_fit_from_the_demo_series_file():
-    fitted = chainwell.fit(
-        POTENTIALS / "alternating_chain.toml",
-        POTENTIALS / "demo_series.csv",
-        free=["chain.alternation"],
-        bounds={"chain.alternation": (0.0, 3.0)},
-        set={"grid.spacing": 0.05, "chain.end_extension": 1.6},
+def test_fit_reads_a_csv_file_with_bounds_and_uncertainties(tmp_path):
+    small = {"levels.count": 5}
+    made = chainwell.sweep(
+        CHAIN, vary={"chain.bonds": [3, 5, 7]}, set=dict(small, **{"chain.alternation": 0.8})
     )
-    # The file was made at chain.alternation = 1.1 with 2 nm noise (its header).
-    assert fitted.values["chain.alternation"] == pytest.approx(1.1, abs=0.05)
-    assert fitted.key == "chain.bonds" and fitted.quantity == "wavelength_nm"
+    lines = ["chain.bonds,energy.2,uncertainty"]
+    lines += [f"{r['value']},{r['levels'][1]['energy']!r},0.01" for r in made.rows]
+    data = tmp_path / "series.csv"
+    data.write_text("\n".join(lines) + "\n")
+    fitted = chainwell.fit(
+        CHAIN,
+        data,
+        free=["chain.alternation"],
+        bounds={"chain.alternation": (0.0, 2.0)},
+        set=small,
+    )
+    assert fitted.values["chain.alternation"] == pytest.approx(0.8, abs=1e-6)
+    assert fitted.key == "chain.bonds" and fitted.quantity == "energy.2"
+    assert fitted.to_dict()["input"]["data"] == str(data)
+    # A fault in the data names the file and the line.
+    data.write_text("chain.bonds,energy.2\n3,abc\n")
+    with pytest.raises(chainwell.InputError, match=r"series.csv:2"):
+        chainwell.fit(CHAIN, data, free="chain.alternation", set=small)
 
 
 def test_free_bands_are_the_free_electron_parabola():
@@ -323,3 +355,22 @@ def test_the_readme_notebook_example_runs(monkeypatch):
         exec(compile(block, "README.md", "exec"), scope)
     assert len(scope["series"]) == 3
     assert len(scope["frame"]) == sum(len(r["levels"]) for r in scope["series"].rows)
+
+
+def test_an_interrupt_stops_a_long_sweep():
+    import _thread
+
+    # Thousands of cases: far more than the time before the interrupt. The
+    # interrupt raises the sweep's stop flag, the sweep stops at its next
+    # case, and KeyboardInterrupt reaches the caller.
+    timer = threading.Timer(0.5, _thread.interrupt_main)
+    timer.start()
+    try:
+        with pytest.raises(KeyboardInterrupt):
+            chainwell.sweep(
+                CHAIN,
+                vary={"chain.bonds": "3:6000"},
+                set={"grid.spacing": 0.1, "grid.order": 2, "levels.count": 4},
+            )
+    finally:
+        timer.cancel()
