@@ -47,9 +47,21 @@ pub fn aligned_steps(
     wanted: usize,
     multiple: usize,
 ) -> Option<usize> {
+    aligned_steps_within(domain, edges, wanted, multiple, SEARCH_SLACK)
+}
+
+/// Like [`aligned_steps`], searching up to `slack` (a fraction of
+/// `wanted`) above `wanted`.
+pub fn aligned_steps_within(
+    domain: &Domain,
+    edges: &[f64],
+    wanted: usize,
+    multiple: usize,
+    slack: f64,
+) -> Option<usize> {
     let multiple = multiple.max(1);
     let start = wanted.div_ceil(multiple) * multiple;
-    let stop = ((wanted as f64) * (1.0 + SEARCH_SLACK)).ceil() as usize + multiple;
+    let stop = ((wanted as f64) * (1.0 + slack)).ceil() as usize + multiple;
     let mut m = start;
     let mut tries = 0;
     while m <= stop && tries < 200_000 {
