@@ -17,6 +17,7 @@
 //! polynomials in `T`), pentadiagonal and fourth order.
 
 use crate::eigen::SymBanded;
+use crate::grid::kink::{corner_entries, Corner};
 use crate::grid::{second_derivative_weights, Grid, Order};
 use crate::grid::{Boundary, Scheme};
 
@@ -102,6 +103,63 @@ fn finite_difference(grid: &Grid, v: &[f64], kinetic: f64, order: Order) -> SymB
         }
     }
     SymBanded { n, bands, wrap }
+}
+
+/// Adds the symmetric part of the corner corrections
+/// ([`crate::grid::kink`]) to a finite-difference Hamiltonian of `order` on
+/// `grid`, `kinetic = hbar²/2m`. Each corner must lie at least `2p` points
+/// from a wall (its entries reach `p - 1` rows and one column beyond the
+/// corner); on a ring the entries wrap.
+///
+/// # Panics
+/// If a corner's entries fall outside the matrix (a corner too close to a
+/// wall, which the pipeline never passes).
+#[track_caller]
+pub fn correct_corners(
+    a: &mut SymBanded,
+    grid: &Grid,
+    corners: &[Corner],
+    order: Order,
+    kinetic: f64,
+) {
+    let n = a.n as isize;
+    for corner in corners {
+        for (r, c, value) in corner_entries(corner, order, grid.spacing, kinetic) {
+            let (row, col) = (corner.index as isize + r, corner.index as isize + c);
+            let (row, col) = if a.wrap {
+                (row.rem_euclid(n), col.rem_euclid(n))
+            } else {
+                assert!(
+                    (0..n).contains(&row) && (0..n).contains(&col),
+                    "corner at unknown {} too close to a wall",
+                    corner.index
+                );
+                (row, col)
+            };
+            // C_sym = (C + C^T) / 2: an off-diagonal entry adds half of
+            // itself to the one stored element of the pair.
+            let share = if row == col { value } else { 0.5 * value };
+            add_element(a, row as usize, col as usize, share);
+        }
+    }
+}
+
+/// Adds `value` to the stored element `(i, j)` (= `(j, i)`) of a symmetric
+/// banded matrix, wrapped couplings included.
+fn add_element(a: &mut SymBanded, i: usize, j: usize, value: f64) {
+    let n = a.n;
+    let p = a.bands.len() - 1;
+    if a.wrap {
+        let d = (j + n - i) % n;
+        if d <= p {
+            a.bands[d][i] += value;
+        } else {
+            a.bands[(i + n - j) % n][j] += value;
+        }
+    } else {
+        let (lo, hi) = if i <= j { (i, j) } else { (j, i) };
+        a.bands[hi - lo][lo] += value;
+    }
 }
 
 fn add_sym(bands: &mut [Vec<f64>], r: usize, c: usize, value: f64) {

@@ -18,7 +18,7 @@ pub enum LengthUnit {
     /// Nanometre, 10 Å.
     #[serde(rename = "nm")]
     Nanometre,
-    /// Bohr radius, CODATA 2018.
+    /// Bohr radius, CODATA 2022.
     #[serde(rename = "bohr")]
     Bohr,
 }
@@ -32,7 +32,7 @@ pub enum EnergyUnit {
     /// Millielectronvolt.
     #[serde(rename = "meV")]
     MilliElectronVolt,
-    /// Hartree, CODATA 2018.
+    /// Hartree, CODATA 2022.
     #[serde(rename = "hartree")]
     Hartree,
     /// Wavenumber, cm⁻¹ (energy `h c / lambda`).
@@ -172,9 +172,9 @@ mod tests {
             energy: EnergyUnit::Hartree,
         };
         assert_relative_eq!(u.length_out(u.length_in(3.7)), 3.7, max_relative = 1e-15);
-        // 1 hartree = 27.211 386 245 988 eV (CODATA 2018).
-        assert_relative_eq!(u.energy_in(1.0), 27.211_386_245_988, max_relative = 1e-15);
-        // 8065.543 94 cm^-1 per eV (CODATA 2018 conversion table).
+        // 1 hartree = 27.211 386 245 981 eV (CODATA 2022).
+        assert_relative_eq!(u.energy_in(1.0), 27.211_386_245_981, max_relative = 1e-15);
+        // 8065.543 94 cm^-1 per eV (CODATA 2022 conversion table; exact).
         let w = Units {
             length: LengthUnit::Nanometre,
             energy: EnergyUnit::Wavenumber,

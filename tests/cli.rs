@@ -55,7 +55,7 @@ fn solve_json_has_the_contract_keys() {
     let occ = &doc["occupancy"];
     assert_eq!(occ["homo"], 3);
     assert_eq!(occ["lumo"], 4);
-    // wavelength_nm = hc / gap, hc = 1239.841 984 eV nm (CODATA 2018).
+    // wavelength_nm = hc / gap, hc = 1239.841 984 eV nm (CODATA 2022, exact).
     let gap = occ["gap"].as_f64().unwrap();
     let wl = occ["wavelength_nm"].as_f64().unwrap();
     assert!((wl * gap / 1_239.841_984 - 1.0).abs() < 1e-9);

@@ -104,7 +104,7 @@ fn thomas_reiche_kuhn_sum_is_one() {
 #[test]
 fn chain_filling_and_wavelength() {
     // 9 bonds, 10 atoms, 10 pi electrons: HOMO 5, LUMO 6; wavelength = hc/gap
-    // with hc = 1239.841 984 eV nm (CODATA 2018).
+    // with hc = 1239.841 984 eV nm (CODATA 2022, exact).
     let sol = solve("[chain]\nbonds = 9\nalternation = 0.6\n[grid]\npoints = 700\norder = 8\n");
     let occ = sol.occupancy.as_ref().unwrap();
     assert_eq!(occ.electrons, 10);

@@ -47,11 +47,23 @@ pub fn aligned_steps(
     wanted: usize,
     multiple: usize,
 ) -> Option<usize> {
+    aligned_steps_within(domain, edges, wanted, multiple, SEARCH_SLACK)
+}
+
+/// Like [`aligned_steps`], searching up to `slack` (a fraction of
+/// `wanted`) above `wanted`.
+pub fn aligned_steps_within(
+    domain: &Domain,
+    edges: &[f64],
+    wanted: usize,
+    multiple: usize,
+    slack: f64,
+) -> Option<usize> {
     let multiple = multiple.max(1);
     // Step counts near usize::MAX (a huge domain at a fine spacing) cannot
     // be searched; the caller's limits refuse such grids.
     let start = wanted.div_ceil(multiple).checked_mul(multiple)?;
-    let above = (wanted as f64) * (1.0 + SEARCH_SLACK);
+    let above = (wanted as f64) * (1.0 + slack);
     if !(above < usize::MAX as f64) {
         return None;
     }

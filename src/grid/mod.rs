@@ -6,9 +6,11 @@
 //! `x_i = from + i h`, `i = 0..N`, `h = L / N`.
 
 pub mod align;
+pub mod kink;
 mod stencil;
 
-pub use stencil::{dispersion, second_derivative_weights, Order};
+pub use kink::Corner;
+pub use stencil::{dispersion, fornberg, second_derivative_weights, Order};
 
 use serde::Serialize;
 

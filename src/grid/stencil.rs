@@ -64,8 +64,9 @@ pub fn second_derivative_weights(order: Order) -> Vec<f64> {
 }
 
 /// Fornberg's algorithm: weights `w[m][j]` of the `m`-th derivative at `z`
-/// from values at `x[j]`, for `m = 0..=max_derivative`.
-fn fornberg(z: f64, x: &[f64], max_derivative: usize) -> Vec<Vec<f64>> {
+/// from values at `x[j]`, for `m = 0..=max_derivative` (any distinct
+/// nodes, one-sided ones included).
+pub fn fornberg(z: f64, x: &[f64], max_derivative: usize) -> Vec<Vec<f64>> {
     let n = x.len();
     let mut c = vec![vec![0.0; n]; max_derivative + 1];
     c[0][0] = 1.0;

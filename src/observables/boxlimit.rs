@@ -105,7 +105,7 @@ mod tests {
     #[test]
     fn box_energy_closed_form() {
         // E_n = n^2 h^2 / (8 m_e L^2), Griffiths eq. 2.30, with h, m_e, e
-        // from CODATA 2018 (independent of hbar2_over_2me_ev_a2).
+        // from CODATA 2022 (independent of hbar2_over_2me_ev_a2).
         let h = crate::constants::PLANCK_J_S;
         let me = crate::constants::ELECTRON_MASS_KG;
         let e = crate::constants::ELEMENTARY_CHARGE_C;

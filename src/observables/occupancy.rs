@@ -379,7 +379,7 @@ mod tests {
         assert_relative_eq!(occ.total_energy, 14.0, max_relative = 1e-15);
         assert!(occ.total_energy_complete);
         assert_relative_eq!(occ.gap.unwrap_or(f64::NAN), 3.5, max_relative = 1e-15);
-        // hc = 1239.841984 eV nm (CODATA 2018), 1239.841984 / 3.5 nm.
+        // hc = 1239.841984 eV nm (CODATA 2022, exact), 1239.841984 / 3.5 nm.
         assert_relative_eq!(
             occ.wavelength_nm.unwrap_or(f64::NAN),
             354.240_567,

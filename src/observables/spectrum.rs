@@ -40,7 +40,7 @@ use serde::Serialize;
 /// strength per unit integrated molar absorptivity, with `epsilon` in
 /// L mol^-1 cm^-1 and `nu~` in cm^-1 (Atkins' *Physical Chemistry*; Hilborn,
 /// Am. J. Phys. 50, 982 (1982)). It equals `4 ln(10) eps_0 m_e c^2 /
-/// (N_A e^2)` = 4.318 999e-9 with CODATA 2018 values.
+/// (N_A e^2)` = 4.318 999e-9 with CODATA 2022 values.
 pub const STRENGTH_PER_ABSORPTIVITY: f64 = 4.319e-9;
 
 /// Bands are laid out this many FWHM beyond the outermost centres by
@@ -199,9 +199,9 @@ mod tests {
     #[test]
     fn constant_matches_its_derivation() {
         // 4 ln10 eps0 m_e c^2 / (N_A e^2), eps0 = e^2 / (2 alpha h c) with
-        // alpha = 7.297 352 5693e-3 (CODATA 2018); the factor 10 converts
+        // alpha = 7.297 352 5643e-3 (CODATA 2022, from memory); the factor 10 converts
         // SI (m mol^-1) to L mol^-1 cm^-2.
-        let alpha = 7.297_352_569_3e-3;
+        let alpha = 7.297_352_564_3e-3;
         let e = ELEMENTARY_CHARGE_C;
         let c = SPEED_OF_LIGHT_M_S;
         let eps0 = e * e / (2.0 * alpha * PLANCK_J_S * c);
@@ -215,7 +215,7 @@ mod tests {
         let bands = [(3.0, 0.8), (4.2, 0.3), (2.4, 0.05)];
         let grid = default_wavelength_grid(&bands, 0.3);
         assert!(grid.windows(2).all(|w| w[0] < w[1]));
-        // Covers every centre (hc/E, CODATA 2018 hc).
+        // Covers every centre (hc/E, CODATA 2022 hc, exact).
         for (e, _) in bands {
             let centre = wavelength_of(e);
             assert!(grid[0] < centre && centre < grid[grid.len() - 1]);
@@ -247,7 +247,7 @@ mod tests {
         let peak = f / (STRENGTH_PER_ABSORPTIVITY * PI * 0.5 * width);
         assert_relative_eq!(lorentz.epsilon[0], peak, max_relative = 1e-12);
         assert_relative_eq!(lorentz.epsilon[1], 0.5 * peak, max_relative = 1e-10);
-        // 2.5 eV is 20 163.9 cm^-1 and 495.94 nm (CODATA 2018 hc).
+        // 2.5 eV is 20 163.9 cm^-1 and 495.94 nm (CODATA 2022 hc, exact).
         assert_relative_eq!(centre, 20_163.87, max_relative = 1e-6);
         assert_relative_eq!(lambdas[0], 495.936_79, max_relative = 1e-7);
     }

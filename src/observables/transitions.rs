@@ -31,10 +31,15 @@
 //! For one particle of mass `m` in one dimension,
 //! `sum_j (E_j - E_i) |<i|x|j>|^2 = hbar^2 / (2m)` over the complete set of
 //! states (W. Thomas, Naturwiss. 13, 627 (1925); W. Kuhn, Z. Phys. 33, 408
-//! (1925)). [`trk_sum`] divides the sum over the computed levels by
-//! `hbar^2/(2m)`, so the value is the fraction of the total one-electron
-//! oscillator strength out of state `i` that the computed levels capture: 1
-//! when the set is complete, less when higher levels matter. On an `N`-point
+//! (1925)). The strengths above use the electron mass, so the sum is
+//! reported in the same convention: [`trk_sum`] divides by `hbar^2/(2 m_e)`,
+//! giving the sum of the one-electron strengths along the axis,
+//! `S = (2 m_e / hbar^2) sum_j (E_j - E_i) |<i|x|j>|^2` (three times the sum
+//! of the isotropic `f` with `g = 1`). Over a complete set `S = m_e / m`: 1
+//! for an electron, `1/2` for `particle.mass = 2`, larger for a light
+//! effective mass. `completeness = S / (m_e / m)` is the fraction of that
+//! total the computed levels capture: 1 when the set is complete, less when
+//! higher levels matter. On an `N`-point
 //! finite-difference grid even all `N` eigenvectors give `h * sum_k
 //! psi_i(x_k) psi_i(x_{k+1})` (with the three-point kinetic stencil) rather
 //! than 1, short by `O(h^2 <p^2>)`, so a value a little below 1 on a coarse
@@ -168,14 +173,19 @@ pub fn transitions(
 /// Result of the Thomas-Reiche-Kuhn sum over the computed levels.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct SumRule {
-    /// `S = (1/kinetic) sum_j (E_j - E_i) |<i|x|j>|^2` (dimensionless).
+    /// `S = (2 m_e / hbar^2) sum_j (E_j - E_i) |<i|x|j>|^2`
+    /// (dimensionless): the one-electron strengths along the axis, in the
+    /// electron-mass convention of [`oscillator_strength`].
     pub value: f64,
+    /// What `value` is over a complete set of states: `m_e / m` (1 for an
+    /// electron).
+    pub expected: f64,
     /// Number of computed levels entering the sum (the partner `j` runs over
     /// all of them; the term `j = i` is zero).
     pub levels_used: usize,
-    /// Fraction of the complete sum captured, equal to `value` because the
-    /// complete sum is 1 (see the module docs); values near 1 mean the
-    /// computed levels carry essentially all the strength out of level `i`.
+    /// Fraction of the complete sum captured, `value / expected`; values
+    /// near 1 mean the computed levels carry essentially all the strength
+    /// out of level `i`.
     pub completeness: f64,
 }
 
@@ -183,8 +193,9 @@ pub struct SumRule {
 /// `psis`, 0 for the first computed level) over all computed levels.
 ///
 /// `kinetic` is `hbar^2/(2m)` of the particle in eV Å^2 (not necessarily of
-/// an electron). When `from_index` is out of range, or `kinetic` is not
-/// positive, the result has `levels_used = 0` and value 0.
+/// an electron): it sets `expected = kinetic / (hbar^2/(2 m_e)) = m_e / m`.
+/// When `from_index` is out of range, or `kinetic` is not positive, the
+/// result has `levels_used = 0` and value 0.
 pub fn trk_sum(
     x: &[f64],
     psis: &[Vec<f64>],
@@ -197,6 +208,7 @@ pub fn trk_sum(
     if from_index >= count || kinetic.is_nan() || kinetic <= 0.0 {
         return SumRule {
             value: 0.0,
+            expected: 0.0,
             levels_used: 0,
             completeness: 0.0,
         };
@@ -210,11 +222,12 @@ pub fn trk_sum(
             (energies[j] - e_i) * d * d
         })
         .sum();
-    let value = sum / kinetic;
+    let electron = hbar2_over_2me_ev_a2();
     SumRule {
-        value,
+        value: sum / electron,
+        expected: kinetic / electron,
         levels_used: count,
-        completeness: value,
+        completeness: sum / kinetic,
     }
 }
 
@@ -415,11 +428,18 @@ mod tests {
         let energies: Vec<f64> = (1..=200).map(|n| box_energy(n, length, kinetic)).collect();
         let rule = trk_sum(&x, &states, &energies, h, kinetic, 0);
         assert_eq!(rule.levels_used, 200);
-        assert!((rule.value - 1.0).abs() < 1e-4, "{rule:?}");
-        assert_eq!(rule.completeness, rule.value);
+        assert!((rule.completeness - 1.0).abs() < 1e-4, "{rule:?}");
+        // The value is in the electron-mass convention: m_e / m when complete.
+        let ratio = kinetic / hbar2_over_2me_ev_a2();
+        assert_relative_eq!(rule.expected, ratio, max_relative = 1e-15);
+        assert_relative_eq!(rule.value, rule.completeness * ratio, max_relative = 1e-12);
         let few = trk_sum(&x, &states[..3], &energies[..3], h, kinetic, 0);
         // Only <1|x|2> contributes: 256 / (27 pi^2) = 0.9607 (by hand).
-        assert_relative_eq!(few.value, 256.0 / (27.0 * PI * PI), max_relative = 1e-5);
+        assert_relative_eq!(
+            few.completeness,
+            256.0 / (27.0 * PI * PI),
+            max_relative = 1e-5
+        );
         assert_eq!(
             trk_sum(&x, &states, &energies, h, kinetic, 500).levels_used,
             0
@@ -443,7 +463,7 @@ mod tests {
         for from in [0, 3, 10] {
             let rule = trk_sum(&x, &states, &energies, h, kinetic, from);
             let expected = ((from + 1) as f64 * theta).cos();
-            assert_relative_eq!(rule.value, expected, max_relative = 1e-11);
+            assert_relative_eq!(rule.completeness, expected, max_relative = 1e-11);
         }
     }
 }

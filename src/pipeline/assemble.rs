@@ -8,9 +8,10 @@ use crate::grid::{align, Boundary, Grid};
 use crate::input::Model;
 use crate::observables::{self, states, Occupancy, OccupancyError, StateSummary, Transition};
 
+use super::corners::wall_slope_felt;
 use super::discretise::Discretised;
-use super::guards::{roundoff_floor, Rounding};
-use super::warnings::{jump_warning, precision_warnings, warnings};
+use super::guards::Rounding;
+use super::warnings::{corner_warning, jump_warning, precision_warnings, warnings};
 use super::{Diagnostics, EdgeReport, Level, Solution, SolveError, Timing};
 
 /// Builds the solution from the checked eigenpairs of `d` on `grid`. Timing
@@ -23,7 +24,14 @@ pub fn assemble(
     info: &EigenInfo,
     rounding: Rounding,
 ) -> Result<Solution, SolveError> {
-    let Discretised { x, edges, v, disc } = d;
+    let Discretised {
+        x,
+        edges,
+        breaks,
+        corners,
+        v,
+        disc,
+    } = d;
     let h = grid.spacing;
     let box_length = model.domain.length();
     let first0 = pairs.first;
@@ -43,6 +51,7 @@ pub fn assemble(
             error_estimate: None,
             extrapolated: None,
             observed_order: None,
+            estimate_widened: false,
             effective_length: None,
         });
         psis.push(psi);
@@ -96,9 +105,20 @@ pub fn assemble(
     }
     let sum_rule = (first_n == 1 && !ring && levels.len() > 1)
         .then(|| observables::trk_sum(&x, &psis, &energies, h, kinetic, 0));
+    let steps = grid.steps();
+    let on_grid = |set: &[f64]| align::is_aligned(&model.domain, set, steps);
+    let corrected = |set: &[f64]| set.iter().all(|x| corners.corrected.contains(x));
     let edge_report = EdgeReport {
-        aligned: align::is_aligned(&model.domain, &edges, grid.steps()),
+        aligned: on_grid(&edges),
         positions: edges,
+        kinks_aligned: on_grid(&breaks.kinks),
+        kinks_corrected: corrected(&breaks.kinks),
+        weak_aligned: on_grid(&breaks.weak),
+        weak_corrected: corrected(&breaks.weak),
+        kinks: breaks.kinks,
+        weak_breaks: breaks.weak,
+        uncorrected: corners.uncorrected,
+        wall_slope: wall_slope_felt(model, grid, &v, &psis),
     };
     let mut warnings = warnings(model, grid, &v, &levels);
     warnings.extend(precision_warnings(
@@ -116,8 +136,9 @@ pub fn assemble(
             .and_then(|o| o.open_shell_warning(&model.units)),
     );
     warnings.extend(jump_warning(model, &edge_report));
+    warnings.extend(corner_warning(model, &edge_report));
     let huckel = huckel(model, &mut warnings)?;
-    let roundoff = roundoff_floor(model, grid, &v);
+    let roundoff = rounding.rounding;
     Ok(Solution {
         grid: grid.clone(),
         x,

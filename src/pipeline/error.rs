@@ -5,7 +5,7 @@ use crate::input::{InputError, Model, SourceText};
 use crate::observables::OccupancyError;
 use crate::potential::NonFinite;
 
-use super::limits::{GIB, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT};
+use super::limits::{GIB, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT, SMALLEST_BOX_LEVEL_EV};
 
 /// Why a solve could not finish.
 #[derive(Debug, thiserror::Error)]
@@ -53,7 +53,7 @@ pub enum SolveError {
         norm: f64,
         /// `hbar^2 / (2 m h^2)` for the grid's spacing `h`, eV.
         kinetic: f64,
-        /// The rounding level [`super::limits::ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+        /// The rounding level [`super::limits::REFUSE_ROUNDING`]` * eps * ||H||_1`, eV.
         rounding: f64,
         /// `hbar^2/2m (pi / L)^2` for the domain's length `L`, eV.
         scale: f64,
@@ -61,6 +61,18 @@ pub enum SolveError {
         vmin: f64,
         /// Highest value of the potential on the grid, eV.
         vmax: f64,
+    },
+    /// The domain is so long, or the particle so heavy, that its lowest box
+    /// level is below [`SMALLEST_BOX_LEVEL_EV`]: every level would print as
+    /// 0 (bad input).
+    #[error("the domain's lowest box level hbar^2/2m (pi/L)^2 is {scale:.3e} eV for L = {length:e} angstrom and a mass of {mass:e} electron masses, below {SMALLEST_BOX_LEVEL_EV:e} eV: every level would print as 0; use a shorter domain or a lighter particle")]
+    Underflow {
+        /// Length of the domain, Å.
+        length: f64,
+        /// Particle mass, electron masses.
+        mass: f64,
+        /// The lowest box level, eV.
+        scale: f64,
     },
     /// The eigen-solver returned a pair that is not an eigenpair to working
     /// precision (a computation that could not finish).
@@ -166,6 +178,13 @@ impl SolveError {
             }
             SolveError::ToleranceUnreachable { .. } => {
                 at("grid.tolerance", "grid", self.to_string())
+            }
+            SolveError::Underflow { .. } => {
+                if model.chain.is_some() {
+                    at("chain", "particle", self.to_string())
+                } else {
+                    at("domain.to", "domain", self.to_string())
+                }
             }
             SolveError::Eigen(_) if self.is_input_error() => {
                 at("levels", "levels", self.to_string())

@@ -7,18 +7,16 @@ use crate::grid::Grid;
 use crate::input::Model;
 
 use super::discretise::Discretised;
-use super::limits::{memory_estimate, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT, ROUNDING_FACTOR};
+use super::limits::{
+    memory_estimate, MEMORY_LIMIT_BYTES, REFUSE_ROUNDING, RESIDUAL_LIMIT, SMALLEST_BOX_LEVEL_EV,
+};
 use super::SolveError;
 
-/// The round-off floor of eigenvalues on `grid`: `eps ||H||_1`, with
-/// `||H||_1 <= (t / h^2) sum_d |c_d| + max |V|` (any backward-stable
-/// eigen-solver is accurate to a small multiple of it; J. Demmel, Applied
-/// Numerical Linear Algebra, SIAM 1997, sec. 5.2).
-pub fn roundoff_floor(model: &Model, grid: &Grid, v: &[f64]) -> f64 {
-    let c = crate::grid::second_derivative_weights(model.grid.order);
-    let sum: f64 = c[0].abs() + 2.0 * c[1..].iter().map(|x| x.abs()).sum::<f64>();
-    let vmax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
-    f64::EPSILON * (model.kinetic() / (grid.spacing * grid.spacing) * sum + vmax)
+/// The round-off floor of the eigenvalues of a discretised problem, eV: the
+/// one rounding figure `R = eps ||H||_1` ([`super::limits::REFUSE_ROUNDING`]
+/// says where it comes from). Every warning and estimate uses this value.
+pub fn roundoff_floor(d: &Discretised) -> f64 {
+    f64::EPSILON * d.disc.a.norm_one()
 }
 
 /// The residual ratio of one returned pair (see [`RESIDUAL_LIMIT`]); NaN or
@@ -66,19 +64,36 @@ pub fn check_size(model: &Model, grid: &Grid) -> Result<(), SolveError> {
     Ok(())
 }
 
+/// The domain's lowest box level `hbar^2/2m (pi/L)^2`, eV, the scale every
+/// energy of the solve is compared with; refuses a domain or a mass that
+/// makes it smaller than [`SMALLEST_BOX_LEVEL_EV`] (or not a number), where
+/// every level would print as a confident 0.
+pub fn check_scale(model: &Model) -> Result<f64, SolveError> {
+    let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
+    if scale >= SMALLEST_BOX_LEVEL_EV {
+        Ok(scale)
+    } else {
+        Err(SolveError::Underflow {
+            length: model.domain.length(),
+            mass: model.mass,
+            scale,
+        })
+    }
+}
+
 /// How much rounding blurs the energies of a discretised problem.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Rounding {
-    /// [`ROUNDING_FACTOR`]` * eps * ||H||_1`, eV.
+    /// The rounding figure `R = eps * ||H||_1` ([`roundoff_floor`]), eV.
     pub rounding: f64,
     /// The domain's lowest box level `hbar^2/2m (pi / L)^2`, eV: the scale
     /// the rounding is compared with.
     pub scale: f64,
 }
 
-/// Refuses a matrix whose rounding blurs every energy by more than the
-/// domain's lowest box level (no level could be told from the next), and
-/// returns the rounding level otherwise.
+/// Refuses a matrix whose rounding ([`REFUSE_ROUNDING`]` * R`) blurs every energy by more
+/// than that level (no level could be told from the next); returns `R`
+/// otherwise.
 pub fn check_conditioning(
     model: &Model,
     grid: &Grid,
@@ -87,15 +102,15 @@ pub fn check_conditioning(
     let vmin = d.v.iter().copied().fold(f64::INFINITY, f64::min);
     let vmax = d.v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     let norm = d.disc.a.norm_one();
-    let rounding = ROUNDING_FACTOR * f64::EPSILON * norm;
-    let scale = model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
+    let rounding = roundoff_floor(d);
+    let scale = check_scale(model)?;
     // An infinite norm (a spacing so small that 1/h^2 overflows) must be
     // refused too.
-    if !rounding.is_finite() || rounding > scale {
+    if !rounding.is_finite() || REFUSE_ROUNDING * rounding > scale {
         return Err(SolveError::IllConditioned {
             norm,
             kinetic: model.kinetic() / (grid.spacing * grid.spacing),
-            rounding,
+            rounding: REFUSE_ROUNDING * rounding,
             scale,
             vmin,
             vmax,

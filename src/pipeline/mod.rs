@@ -12,8 +12,10 @@
 //!                                                transitions) ──> warnings
 //! ```
 //!
-//! - [`gridding`]: the grid a model asks for, aligned with its jumps.
+//! - [`gridding`]: the grid a model asks for, aligned with its breaks.
 //! - [`discretise`]: the potential on the grid and the banded Hamiltonian.
+//! - [`corners`]: kinks and weak breaks on grid points, and their stencil
+//!   corrections; the potential's slope at hard walls.
 //! - [`guards`]: memory, conditioning and residual checks; the round-off floor.
 //! - [`limits`]: the thresholds and the memory model those checks use.
 //! - [`guesses`]: order-2 levels as shifts for the higher-order schemes.
@@ -29,6 +31,7 @@
 pub mod accuracy;
 pub mod assemble;
 pub mod cell;
+pub mod corners;
 pub mod discretise;
 pub mod error;
 pub mod gridding;
@@ -45,7 +48,7 @@ pub mod warnings;
 mod tests;
 
 pub use error::{Fault, SolveError};
-pub use gridding::{grid_for, grid_near, interior_edges, wanted_steps};
+pub use gridding::{grid_for, grid_near, grid_near_within, interior_edges, wanted_steps, Breaks};
 pub use guards::roundoff_floor;
 pub use limits::{memory_estimate, MEMORY_LIMIT_BYTES};
 pub use on_grid::{energies_on, solve_on};

@@ -9,7 +9,7 @@ use crate::input::Model;
 
 use super::assemble::assemble;
 use super::discretise::{discretise, Discretised};
-use super::guards::{check_conditioning, check_residuals, check_size};
+use super::guards::{check_conditioning, check_residuals, check_scale, check_size};
 use super::guesses::with_order2_guesses;
 use super::{Solution, SolveError, Timing};
 
@@ -72,6 +72,7 @@ fn eigenpairs(
 /// Solves the model on the given grid.
 pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solution, SolveError> {
     let start = Instant::now();
+    check_scale(model)?;
     check_size(model, grid)?;
     let d = discretise(model, grid)?;
     let rounding = check_conditioning(model, grid, &d)?;

@@ -37,6 +37,11 @@ pub struct LevelRecord {
     /// Observed order of convergence.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub observed_order: Option<f64>,
+    /// Whether the estimate was widened because Richardson's assumptions
+    /// failed (see [`crate::pipeline::accuracy::richardson`]); present
+    /// only when true.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub estimate_widened: bool,
 }
 
 /// The filling of the levels, in the input's units.
@@ -104,6 +109,7 @@ pub fn level_records(model: &Model, sol: &Solution) -> Vec<LevelRecord> {
             error_estimate: l.error_estimate.map(|e| u.energy_out(e)),
             extrapolated: l.extrapolated.map(|e| u.energy_out(e)),
             observed_order: l.observed_order,
+            estimate_widened: l.estimate_widened,
         })
         .collect()
 }

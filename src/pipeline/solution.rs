@@ -23,6 +23,10 @@ pub struct Level {
     pub extrapolated: Option<f64>,
     /// Observed order of convergence, when measurable.
     pub observed_order: Option<f64>,
+    /// Whether the error estimate was widened because the levels did not
+    /// converge as Richardson extrapolation assumes (erratic between grids,
+    /// or an observed order far above the scheme's).
+    pub estimate_widened: bool,
     /// Length of the ideal box that gives this level's energy above the
     /// potential's floor, Å (none when the level lies at or below the floor).
     pub effective_length: Option<f64>,
@@ -43,13 +47,31 @@ pub struct Diagnostics {
     pub inertia_below: usize,
 }
 
-/// The potential's jumps and the grid.
+/// The potential's breaks and the grid.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct EdgeReport {
     /// Positions of the jumps inside the domain, Å.
     pub positions: Vec<f64>,
     /// Whether every jump sits on a grid point.
     pub aligned: bool,
+    /// Positions of the kinks (V continuous, V' jumps) inside the domain, Å.
+    pub kinks: Vec<f64>,
+    /// Whether every kink sits on a grid point.
+    pub kinks_aligned: bool,
+    /// Whether every kink's stencil is corrected ([`crate::grid::kink`]).
+    pub kinks_corrected: bool,
+    /// Positions of the weak breaks (V''' jumps) inside the domain, Å.
+    pub weak_breaks: Vec<f64>,
+    /// Whether every weak break sits on a grid point.
+    pub weak_aligned: bool,
+    /// Whether every weak break's stencil is corrected.
+    pub weak_corrected: bool,
+    /// Kinks and weak breaks left uncorrected, Å, with the reason.
+    #[serde(skip)]
+    pub uncorrected: Vec<(f64, crate::pipeline::corners::Uncorrected)>,
+    /// Whether a hard wall cuts the potential with a slope that the levels
+    /// feel ([`crate::pipeline::corners::wall_slope_felt`]).
+    pub wall_slope: bool,
 }
 
 /// Wall-clock seconds.

@@ -135,7 +135,7 @@ fn large_higher_order_grids_take_order2_guesses_and_agree_with_shift_invert() {
         };
         let reference = solve_on(&m, &grid, &plain).unwrap();
         assert_eq!(reference.diagnostics.method, "shift-invert");
-        let tol = 64.0 * roundoff_floor(&m, &grid, &guided.potential);
+        let tol = 64.0 * guided.roundoff_floor;
         for (a, b) in guided.levels.iter().zip(&reference.levels) {
             assert_eq!(a.n, b.n);
             assert!(

@@ -4,7 +4,7 @@ use std::fmt::Write;
 
 use serde_json::{json, Map, Value};
 
-use super::envelope::{input_echo, program};
+use super::envelope::{constants, input_echo, program, CONSTANTS_KEY};
 use crate::bands::BandEdge;
 use crate::input::{Model, SourceText};
 use crate::pipeline::cell::CellSource;
@@ -35,6 +35,7 @@ pub fn bands_document(
     let mut doc = Map::new();
     doc.insert("format".into(), json!("chainwell.bands/1"));
     doc.insert("program".into(), program());
+    doc.insert(CONSTANTS_KEY.into(), constants());
     let mut units = u.to_json();
     if let Value::Object(m) = &mut units {
         m.insert(

@@ -4,7 +4,7 @@ use std::fmt::Write;
 
 use serde_json::{json, Value};
 
-use super::envelope::program;
+use super::envelope::{constants, program};
 use crate::input::Model;
 use crate::study::converge::Convergence;
 
@@ -14,10 +14,13 @@ pub fn converge_document(model: &Model, conv: &Convergence) -> Value {
     json!({
         "format": "chainwell.converge/1",
         "program": program(),
+        "constants": constants(),
         "units": u.to_json(),
         "points": conv.points,
         "spacings": conv.spacings.iter().map(|h| u.length_out(*h)).collect::<Vec<_>>(),
         "expected_order": conv.expected_order,
+        "scheme_order": conv.scheme_order,
+        "limited_by": conv.limited_by.map(|l| l.describe()),
         "roundoff_floor": u.energy_out(conv.roundoff_floor),
         "levels": conv.rows.iter().map(|r| json!({
             "n": r.n,
@@ -26,6 +29,8 @@ pub fn converge_document(model: &Model, conv: &Convergence) -> Value {
             "extrapolated": u.energy_out(r.extrapolated),
             "errors": r.errors.iter().map(|e| u.energy_out(*e)).collect::<Vec<_>>(),
             "short_of_expected_order": r.short,
+            "expected": r.expected,
+            "limited_by": r.limited_by.map(|l| l.describe()),
         })).collect::<Vec<_>>(),
     })
 }
@@ -37,13 +42,18 @@ pub fn converge_table(model: &Model, conv: &Convergence) -> String {
     let mut s = String::new();
     let _ = writeln!(
         s,
-        "grids (points): {}; expected order {}; round-off floor {:.1e} {e}",
+        "grids (points): {}; expected order {}{}; round-off floor {:.1e} {e}",
         conv.points
             .iter()
             .map(|p| p.to_string())
             .collect::<Vec<_>>()
             .join(", "),
         conv.expected_order,
+        conv.limited_by.map_or(String::new(), |l| format!(
+            " (the scheme's is {}, held down by {})",
+            conv.scheme_order,
+            l.describe()
+        )),
         u.energy_out(conv.roundoff_floor)
     );
     for r in &conv.rows {
@@ -93,7 +103,7 @@ pub fn converge_table(model: &Model, conv: &Convergence) -> String {
     if !short.is_empty() {
         let _ = writeln!(
             s,
-            "\nlevels {} converge slower than order {}: a jump in the potential or a grid too coarse for them",
+            "\nlevels {} converge slower than order {}: the grids are too coarse for them (not yet in the asymptotic range) or near round-off",
             short.join(", "),
             conv.expected_order
         );

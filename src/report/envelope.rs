@@ -10,6 +10,16 @@ pub fn program() -> Value {
     json!({"name": "chainwell", "version": env!("CARGO_PKG_VERSION")})
 }
 
+/// The key naming the edition of the physical constants behind the
+/// numbers; every document carries it beside `program`.
+pub const CONSTANTS_KEY: &str = "constants";
+
+/// The edition of the physical constants ([`crate::constants::EDITION`]),
+/// the value of [`CONSTANTS_KEY`] in every document.
+pub fn constants() -> Value {
+    json!(crate::constants::EDITION)
+}
+
 /// The echo of the input: the file's text, the overrides and the checked
 /// values that matter for reproducing the run.
 pub fn input_echo(model: &Model, source: &SourceText) -> Value {

@@ -2,7 +2,7 @@
 
 use serde_json::{json, Value};
 
-use super::envelope::program;
+use super::envelope::{constants, program};
 use crate::study::fit::{FitProgress, FitResult, FitSpec, FORMAT};
 
 /// The `chainwell.fit/1` document.
@@ -10,6 +10,7 @@ pub fn fit_document(fit: &FitResult, units: &Value, input: &Value) -> Value {
     json!({
         "format": FORMAT,
         "program": program(),
+        "constants": constants(),
         "units": units,
         "complete": true,
         "key": fit.key,
@@ -98,6 +99,7 @@ pub fn fit_progress_document(
     json!({
         "format": FORMAT,
         "program": program(),
+        "constants": constants(),
         "units": units,
         "complete": false,
         "key": spec.data.key,

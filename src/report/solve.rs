@@ -3,7 +3,7 @@
 
 use serde_json::{json, Map, Value};
 
-use super::envelope::{input_echo, program};
+use super::envelope::{constants, input_echo, program, CONSTANTS_KEY};
 use crate::input::{Model, SourceText};
 use crate::pipeline::record::{level_records, occupancy_record};
 use crate::pipeline::Solution;
@@ -40,9 +40,11 @@ pub fn solve_document(
     with_timing: bool,
 ) -> Value {
     let u = &model.units;
+    let expected = crate::pipeline::accuracy::expected(model, &sol.edges);
     let mut doc = Map::new();
     doc.insert("format".into(), json!("chainwell.solve/1"));
     doc.insert("program".into(), program());
+    doc.insert(CONSTANTS_KEY.into(), constants());
     doc.insert("units".into(), u.to_json());
     doc.insert(
         "grid".into(),
@@ -55,6 +57,13 @@ pub fn solve_document(
             "roundoff_floor": u.energy_out(sol.roundoff_floor),
             "jumps": sol.edges.positions.iter().map(|x| u.length_out(*x)).collect::<Vec<_>>(),
             "jumps_on_grid_points": sol.edges.aligned,
+            "kinks": sol.edges.kinks.iter().map(|x| u.length_out(*x)).collect::<Vec<_>>(),
+            "kinks_on_grid_points": sol.edges.kinks_aligned,
+            "kinks_corrected": sol.edges.kinks_corrected,
+            "weak_breaks": sol.edges.weak_breaks.iter().map(|x| u.length_out(*x)).collect::<Vec<_>>(),
+            "weak_breaks_on_grid_points": sol.edges.weak_aligned,
+            "expected_order": expected.order,
+            "order_limited_by": expected.limited_by.map(|l| l.describe()),
             "refinement": sol.refinement,
         }),
     );
@@ -75,7 +84,7 @@ pub fn solve_document(
     if let Some(sr) = &sol.sum_rule {
         doc.insert(
             "sum_rule".into(),
-            json!({"from": 1, "value": sr.value, "levels_used": sr.levels_used, "completeness": sr.completeness}),
+            json!({"from": 1, "value": sr.value, "expected": sr.expected, "levels_used": sr.levels_used, "completeness": sr.completeness}),
         );
     }
     if let (Some(spec), Some(h)) = (&model.huckel, &sol.huckel) {

@@ -111,8 +111,8 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
     if let Some(sr) = &sol.sum_rule {
         let _ = writeln!(
             s,
-            "\nThomas-Reiche-Kuhn sum for level 1 over the {} computed levels: {:.6} (1 when complete)",
-            sr.levels_used, sr.value
+            "\nThomas-Reiche-Kuhn sum for level 1 over the {} computed levels: {:.6} ({:.6} when complete: m_e/m; {:.2} % captured)",
+            sr.levels_used, sr.value, sr.expected, 100.0 * sr.completeness
         );
     }
     if let Some(groups) = crate::pipeline::ring_degeneracies(sol) {

@@ -12,7 +12,7 @@ use std::fmt::Write;
 
 use serde_json::{json, Map, Value};
 
-use super::envelope::program;
+use super::envelope::{constants, program, CONSTANTS_KEY};
 use crate::study::sweep::{SweepHeader, SweepResult, SweepRow, FORMAT};
 
 fn opt<T: std::fmt::Display>(v: Option<T>) -> String {
@@ -125,6 +125,7 @@ pub fn header_json(h: &SweepHeader) -> Map<String, Value> {
     let mut doc = Map::new();
     doc.insert("format".into(), json!(FORMAT));
     doc.insert("program".into(), program());
+    doc.insert(CONSTANTS_KEY.into(), constants());
     doc.insert("units".into(), h.units.clone());
     doc.insert("key".into(), json!(h.keys.first()));
     if h.keys.len() > 1 {

@@ -2,7 +2,7 @@
 
 use serde_json::{json, Value};
 
-use super::envelope::program;
+use super::envelope::{constants, program};
 use crate::study::target::TargetResult;
 
 /// The `chainwell.target/1` document.
@@ -10,6 +10,7 @@ pub fn target_document(target: &TargetResult, units: &Value, input: &Value) -> V
     json!({
         "format": "chainwell.target/1",
         "program": program(),
+        "constants": constants(),
         "units": units,
         "parameters": [{"key": target.key, "value": target.value}],
         "quantity": target.quantity.name(),

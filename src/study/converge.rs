@@ -6,7 +6,7 @@ use serde::Serialize;
 use crate::eigen::EigenParams;
 use crate::grid::Grid;
 use crate::input::Model;
-use crate::pipeline::accuracy::{expected_order, observed_order, richardson};
+use crate::pipeline::accuracy::{expected, observed_order, richardson, Limit};
 use crate::pipeline::{energies_on, grid_near, solve_on, wanted_steps, SolveError};
 
 /// One level across a sequence of grids.
@@ -24,6 +24,10 @@ pub struct ConvergenceRow {
     pub errors: Vec<f64>,
     /// Whether the last observed order falls short of the expected one.
     pub short: bool,
+    /// The order this level should converge with.
+    pub expected: f64,
+    /// What holds it below the scheme's order, if anything.
+    pub limited_by: Option<Limit>,
 }
 
 /// A convergence study: the levels on grids whose spacing halves each time.
@@ -33,8 +37,13 @@ pub struct Convergence {
     pub points: Vec<usize>,
     /// Spacing of each grid, Å.
     pub spacings: Vec<f64>,
-    /// The scheme's expected order.
+    /// The order the levels should converge with: the scheme's, or lower
+    /// for the cause in `limited_by`.
     pub expected_order: f64,
+    /// The scheme's own order.
+    pub scheme_order: f64,
+    /// What holds the expected order below the scheme's, if anything.
+    pub limited_by: Option<Limit>,
     /// The round-off floor on the finest grid, eV.
     pub roundoff_floor: f64,
     /// One row per level.
@@ -111,7 +120,8 @@ pub fn converge(
             points: finest.points,
         });
     }
-    let order = expected_order(model, !fine.edges.positions.is_empty());
+    let want = expected(model, &fine.edges);
+    let order = want.order;
     let floor = fine.roundoff_floor;
     let rows = (0..count)
         .map(|j| {
@@ -144,6 +154,8 @@ pub fn converge(
                 extrapolated,
                 errors,
                 short,
+                expected: order,
+                limited_by: want.limited_by,
             }
         })
         .collect();
@@ -151,6 +163,8 @@ pub fn converge(
         points: all.iter().map(|(g, _)| g.points).collect(),
         spacings: all.iter().map(|(g, _)| g.spacing).collect(),
         expected_order: order,
+        scheme_order: f64::from(model.grid.accuracy_order()),
+        limited_by: want.limited_by,
         roundoff_floor: floor,
         rows,
     })

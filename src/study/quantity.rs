@@ -1,7 +1,7 @@
 //! Observed quantities a fit or a target compares with a solve.
 //!
 //! `gap` is `E_LUMO - E_HOMO` and `wavelength_nm` is `hc / gap`
-//! (hc = 1239.841 984 eV nm, CODATA 2018), both from the aufbau filling of
+//! (hc = 1239.841 984 eV nm, CODATA 2022, exact), both from the aufbau filling of
 //! the free-electron model (H. Kuhn, J. Chem. Phys. 17, 1198 (1949));
 //! `homo` and `lumo` are those levels' energies and `energy.N` the energy of
 //! level N. Energies are in the input's energy unit.

@@ -5,7 +5,7 @@ use crate::eigen::EigenParams;
 use crate::grid::Grid;
 use crate::input::Model;
 
-use super::{analyse, expected_order};
+use super::{analyse, expected_order, smoothness};
 use crate::pipeline::{energies_on, Solution, SolveError};
 
 /// Coarse step counts for the estimate: `M/2` and `M/4` (rounded).
@@ -46,7 +46,8 @@ pub fn estimate(model: &Model, sol: &mut Solution, params: &EigenParams) -> Resu
     };
     let h = sol.grid.spacing;
     let (r2, r3) = (g2.spacing / h, g3.spacing / h);
-    let order = expected_order(model, !sol.edges.positions.is_empty());
+    let order = expected_order(model, &sol.edges);
+    let smooth = smoothness(&sol.edges);
     for (j, level) in sol.levels.iter_mut().enumerate() {
         let a = analyse(
             level.energy,
@@ -56,10 +57,12 @@ pub fn estimate(model: &Model, sol: &mut Solution, params: &EigenParams) -> Resu
             r3,
             order,
             sol.roundoff_floor,
+            smooth,
         );
         level.error_estimate = Some(a.estimate);
         level.extrapolated = Some(a.extrapolated);
         level.observed_order = a.observed_order;
+        level.estimate_widened = a.widened;
     }
     Ok(())
 }

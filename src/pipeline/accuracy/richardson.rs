@@ -9,6 +9,15 @@
 //! (r3^q - 1) / (r2^q - 1)`; when it falls short of `p` (a jump in the
 //! potential, a grid far from the asymptotic range) the estimate uses `q`,
 //! which is more cautious.
+//!
+//! **When not to trust it.** Richardson's formula assumes the error is
+//! `C h^p` with a smooth `C`. Two signs that it is not, and the estimate is
+//! then widened to [`SAFETY`] times the larger difference to a coarser grid
+//! (`LevelError::widened`): the error is erratic in `h` (a break of the
+//! potential between grid points moves from grid to grid, see
+//! [`Smoothness`]), or the differences change sign, or the observed order
+//! exceeds the scheme's by more than [`ORDER_EXCESS`] (the errors of the
+//! three grids cancel by accident, and `C h^p` is no longer a bound).
 
 /// Multiplies the Richardson estimate so that it bounds the true error in
 /// the pre-asymptotic range too (common practice, no source; the tests check
@@ -18,6 +27,22 @@ pub const SAFETY: f64 = 2.0;
 
 /// Observed orders within this much of the scheme's count as the scheme's.
 pub const ORDER_SLACK: f64 = 0.5;
+
+/// An observed order more than this above the scheme's is not believed
+/// (common practice, no source: a smooth error of order `p` shows `p` plus
+/// a fraction between grids in the asymptotic range).
+pub const ORDER_EXCESS: f64 = 1.0;
+
+/// Whether the error of a level is a smooth function of the spacing on the
+/// grids of an estimate.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Smoothness {
+    /// Every break of the potential stays on a grid point: `C h^p` holds.
+    Smooth,
+    /// A break lies between grid points and moves from grid to grid: the
+    /// error's coefficient jumps with `h`.
+    Erratic,
+}
 
 /// The error analysis of one level.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -31,6 +56,9 @@ pub struct LevelError {
     pub observed_order: Option<f64>,
     /// The order used for the estimate.
     pub order_used: f64,
+    /// Whether the estimate was widened because Richardson's assumptions
+    /// failed (see the module docs).
+    pub widened: bool,
 }
 
 /// The order `q` with `(e3 - e1) / (e2 - e1) = (r3^q - 1) / (r2^q - 1)`,
@@ -61,7 +89,10 @@ pub fn observed_order(e1: f64, e2: f64, e3: f64, r2: f64, r3: f64, noise: f64) -
 
 /// Error analysis of a level from its values on the fine grid (`e1`) and two
 /// coarser grids (`e2` at spacing `r2 h`, `e3` at `r3 h`), for a scheme of
-/// order `order`, with `floor` the round-off floor of the fine grid (eV).
+/// order `order`, with `floor` the round-off floor of the fine grid (eV) and
+/// `smoothness` what the grids promise (see the module docs for when the
+/// estimate is widened).
+#[allow(clippy::too_many_arguments)]
 pub fn analyse(
     e1: f64,
     e2: f64,
@@ -70,18 +101,33 @@ pub fn analyse(
     r3: f64,
     order: f64,
     floor: f64,
+    smoothness: Smoothness,
 ) -> LevelError {
-    let observed = e3.and_then(|e3| observed_order(e1, e2, e3, r2, r3, 4.0 * floor));
+    let noise = 4.0 * floor;
+    let observed = e3.and_then(|e3| observed_order(e1, e2, e3, r2, r3, noise));
     let order_used = match observed {
         Some(q) if q < order - ORDER_SLACK => q.max(0.5),
         _ => order,
     };
     let term = (e2 - e1) / (r2.powf(order_used) - 1.0);
+    let d2 = (e2 - e1).abs();
+    let d3 = e3.map_or(0.0, |e3| (e3 - e1).abs());
+    // Differences above noise that change sign, or whose ratio no order
+    // explains: the error is not C h^p.
+    let unexplained = e3.is_some() && d2 > noise && d3 > noise && observed.is_none();
+    let too_fast = matches!(observed, Some(q) if q > order + ORDER_EXCESS);
+    let widened = smoothness == Smoothness::Erratic || unexplained || too_fast;
+    let estimate = if widened {
+        SAFETY * d2.max(d3) + floor
+    } else {
+        SAFETY * term.abs() + floor
+    };
     LevelError {
         extrapolated: e1 - term,
-        estimate: SAFETY * term.abs() + floor,
+        estimate,
         observed_order: observed,
         order_used,
+        widened,
     }
 }
 
@@ -95,7 +141,16 @@ mod tests {
         // recovered.
         let e = |h: f64| 2.0 + 3.0 * h.powi(4);
         let h = 0.1;
-        let a = analyse(e(h), e(2.0 * h), Some(e(4.0 * h)), 2.0, 4.0, 4.0, 0.0);
+        let a = analyse(
+            e(h),
+            e(2.0 * h),
+            Some(e(4.0 * h)),
+            2.0,
+            4.0,
+            4.0,
+            0.0,
+            Smoothness::Smooth,
+        );
         assert!((a.observed_order.unwrap() - 4.0).abs() < 1e-9);
         assert!((a.extrapolated - 2.0).abs() < 1e-12);
         assert!((a.estimate - SAFETY * 3.0 * h.powi(4)).abs() < 1e-12);
@@ -106,10 +161,63 @@ mod tests {
         // A second-order error seen by a fourth-order scheme.
         let e = |h: f64| 1.0 - 0.5 * h * h;
         let h = 0.05;
-        let a = analyse(e(h), e(2.0 * h), Some(e(4.0 * h)), 2.0, 4.0, 4.0, 0.0);
+        let a = analyse(
+            e(h),
+            e(2.0 * h),
+            Some(e(4.0 * h)),
+            2.0,
+            4.0,
+            4.0,
+            0.0,
+            Smoothness::Smooth,
+        );
         assert!((a.order_used - 2.0).abs() < 1e-6);
         assert!(a.estimate >= 0.5 * h * h);
         assert!((a.extrapolated - 1.0).abs() < 1e-9);
+    }
+
+    /// Regression: a kink between grid points made the error erratic; an
+    /// observed order of 15 for an order-4 scheme gave an estimate of 1e-10
+    /// where the error was 1e-6.
+    #[test]
+    fn an_order_far_above_the_schemes_widens_the_estimate() {
+        // Differences 3e-11 and 3e-11 * 32769 = (4^15 - 1) / (2^15 - 1):
+        // an observed order of 15, made up so that the grids agree by
+        // accident.
+        let e1 = 1.0 + 1e-6;
+        let (e2, e3) = (e1 + 3e-11, e1 + 3e-11 * 32769.0);
+        let a = analyse(e1, e2, Some(e3), 2.0, 4.0, 4.0, 0.0, Smoothness::Smooth);
+        assert!(a.observed_order.unwrap() > 5.0, "{a:?}");
+        assert!(a.widened);
+        assert!(a.estimate >= SAFETY * (e3 - e1).abs(), "{a:?}");
+        // The same numbers on grids known to be erratic: widened as well.
+        let a = analyse(e1, e2, None, 2.0, 4.0, 4.0, 0.0, Smoothness::Erratic);
+        assert!(a.widened && a.estimate >= SAFETY * (e2 - e1).abs());
+        // Differences of opposite sign above noise: no order explains them.
+        let a = analyse(
+            1.0,
+            1.0 + 1e-6,
+            Some(1.0 - 2e-6),
+            2.0,
+            4.0,
+            4.0,
+            0.0,
+            Smoothness::Smooth,
+        );
+        assert!(a.widened && a.estimate >= SAFETY * 1.99e-6, "{a:?}");
+        // A clean order-4 sequence is not widened.
+        let e = |h: f64| 2.0 + 3.0 * h.powi(4);
+        let a = analyse(
+            e(0.1),
+            e(0.2),
+            Some(e(0.4)),
+            2.0,
+            4.0,
+            4.0,
+            0.0,
+            Smoothness::Smooth,
+        );
+        assert!(!a.widened);
     }
 
     #[test]
