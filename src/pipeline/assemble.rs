@@ -131,6 +131,7 @@ pub fn assemble(
             solve_s: 0.0,
             total_s: 0.0,
         },
+        response: None,
     })
 }
 

@@ -75,6 +75,9 @@ pub fn solve_document(
             json!({"from": 1, "value": sr.value, "levels_used": sr.levels_used, "completeness": sr.completeness}),
         );
     }
+    if let Some(r) = super::response::response_json(model, sol, with_timing) {
+        doc.insert("response".into(), r);
+    }
     doc.insert("states".into(), states(model, sol));
     doc.insert(
         "diagnostics".into(),

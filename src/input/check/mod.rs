@@ -4,13 +4,14 @@
 //! Every value is range-checked here, converted to internal units, and every
 //! fault is reported with the location of the value at fault. One file per
 //! part of the input: `grid` (`[domain]`, `[grid]`), `levels` (`[levels]`,
-//! `[spectrum]`), `chain` (`[chain]`) and `terms` (`[[term]]`, formulas and
-//! tables among them); this file holds the entry point, `[units]`,
-//! `[particle]` and the shared value checks.
+//! `[spectrum]`), `chain` (`[chain]`), `response` (`[response]`) and `terms`
+//! (`[[term]]`, formulas and tables among them); this file holds the entry
+//! point, `[units]`, `[particle]` and the shared value checks.
 
 mod chain;
 mod grid;
 mod levels;
+mod response;
 mod terms;
 
 use std::collections::BTreeMap;
@@ -145,6 +146,7 @@ impl<'a> Checker<'a> {
         let electrons_default = chain.as_ref().map(ChainSpec::atoms);
         let levels = self.check_levels(raw.levels.as_ref(), electrons_default)?;
         let spectrum = self.check_spectrum(raw.spectrum.as_ref())?;
+        let response = self.check_response(raw.response.as_ref(), &domain, &levels, &raw)?;
         let mut key_locations = BTreeMap::new();
         let mut note = |key: &str, span: Option<Range<usize>>| {
             if let Some(span) = span {
@@ -170,6 +172,7 @@ impl<'a> Checker<'a> {
             lv.and_then(|l| l.electrons.as_ref().map(Spanned::span))
                 .or_else(|| raw.chain.as_ref().map(|c| c.get_ref().bonds.span())),
         );
+        note("response", raw.response.as_ref().map(Spanned::span));
         let gr = raw.grid.as_ref().map(Spanned::get_ref);
         note("grid", raw.grid.as_ref().map(Spanned::span));
         note(
@@ -191,6 +194,7 @@ impl<'a> Checker<'a> {
             term_locations,
             chain,
             spectrum,
+            response,
             key_locations,
         })
     }
