@@ -87,7 +87,9 @@ fn kink_between_grid_points_is_named_and_within_its_estimate() {
     );
     assert!(!sol.edges.kinks_aligned);
     assert!(
-        sol.warnings.iter().any(|w| w.contains("kink") && w.contains("0.005")),
+        sol.warnings
+            .iter()
+            .any(|w| w.contains("kink") && w.contains("0.005")),
         "{:?}",
         sol.warnings
     );
@@ -95,7 +97,11 @@ fn kink_between_grid_points_is_named_and_within_its_estimate() {
         let err = (l.energy - airy_level(l.n, 2.0)).abs();
         let est = l.error_estimate.unwrap();
         assert!(l.estimate_widened, "n = {}", l.n);
-        assert!(err <= est, "n = {}: error {err:e} above estimate {est:e}", l.n);
+        assert!(
+            err <= est,
+            "n = {}: error {err:e} above estimate {est:e}",
+            l.n
+        );
     }
 }
 
@@ -129,7 +135,9 @@ fn box_order8_codata2022_1e12() {
     let me_2018 = 9.109_383_701_5e-31;
     let length = 12e-10;
     let exact = |n: usize, m: f64| (n * n) as f64 * h * h / (8.0 * m * length * length) / e;
-    let sol = solve("[domain]\nfrom = 0.0\nto = 12.0\n[grid]\npoints = 199\norder = 8\n[levels]\ncount = 3\n");
+    let sol = solve(
+        "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\npoints = 199\norder = 8\n[levels]\ncount = 3\n",
+    );
     for l in &sol.levels {
         let rel = (l.energy / exact(l.n, me) - 1.0).abs();
         assert!(rel < 1e-12, "n = {}: {rel:e}", l.n);
@@ -148,7 +156,12 @@ fn tolerance_1e10_on_12a_box_order8_is_met() {
         "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\ntolerance = 1e-10\norder = 8\n[levels]\ncount = 3\n",
     );
     // E_n = t (n pi / L)^2 (Griffiths eq. 2.30).
-    check_relative("box", &sol, |n| t_e() * (n as f64 * PI / 12.0).powi(2), 1e-10);
+    check_relative(
+        "box",
+        &sol,
+        |n| t_e() * (n as f64 * PI / 12.0).powi(2),
+        1e-10,
+    );
     assert!(sol.refinement.is_some());
 }
 
@@ -162,7 +175,10 @@ fn unreachable_tolerance_at_order8_advises_what_can_be_done() {
     let e = pipeline::solve(&m).unwrap_err();
     assert!(e.is_input_error());
     let text = e.to_string();
-    assert!(text.contains("grid.tolerance") && text.contains("loosen"), "{text}");
+    assert!(
+        text.contains("grid.tolerance") && text.contains("loosen"),
+        "{text}"
+    );
     assert!(!text.contains("higher grid.order"), "{text}");
 }
 

@@ -148,6 +148,16 @@ pub struct SpectrumSpec {
     pub all_pairs: bool,
 }
 
+/// `[response]`, checked: what of the static response to compute.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct ResponseSpec {
+    /// β and γ beside α (default true); α alone costs about half.
+    pub hyperpolarizabilities: bool,
+    /// α as a sum over the computed states beside the exact one (default
+    /// true).
+    pub sum_over_states: bool,
+}
+
 /// The checked input.
 #[derive(Debug, Clone)]
 pub struct Model {
@@ -171,6 +181,8 @@ pub struct Model {
     pub chain: Option<ChainSpec>,
     /// Spectrum options.
     pub spectrum: SpectrumSpec,
+    /// Static response along x, when `[response]` asks for it.
+    pub response: Option<ResponseSpec>,
     /// Where some keys were written (`levels.count`, `levels.electrons`,
     /// `grid.points`, ...), for locating faults that only the solve can
     /// find. Whether a key was written is recorded in the typed specs

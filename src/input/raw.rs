@@ -58,6 +58,9 @@ pub struct RawInput {
     /// The Hückel (tight-binding) picture of the same atoms.
     #[serde(default, deserialize_with = "table")]
     pub huckel: Option<Spanned<RawHuckel>>,
+    /// Static response to a field along x.
+    #[serde(default, deserialize_with = "table")]
+    pub response: Option<Spanned<RawResponse>>,
 }
 
 /// `[units]`.
@@ -213,6 +216,16 @@ pub struct RawSpectrum {
     pub shape: Option<Text>,
     pub width: Option<Num>,
     pub all_pairs: Option<Spanned<bool>>,
+}
+
+/// `[response]`: static polarizability and hyperpolarizabilities.
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+#[allow(missing_docs)]
+pub struct RawResponse {
+    pub enabled: Option<Spanned<bool>>,
+    pub hyperpolarizabilities: Option<Spanned<bool>>,
+    pub sum_over_states: Option<Spanned<bool>>,
 }
 
 /// A value that must be written as a TOML table. serde's derived structs

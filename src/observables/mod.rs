@@ -32,11 +32,15 @@
 //! * [`spectrum`]: [`absorption`] / [`Spectrum`] with [`LineShape`],
 //!   [`default_wavelength_grid`], [`integrated_strength`]
 //!   (`f = 4.319e-9 int epsilon d nu~`, Atkins' *Physical Chemistry*).
+//! * [`response`]: static polarizability and hyperpolarizabilities of the
+//!   filled levels along x ([`static_response`]; Sternheimer equations on
+//!   the grid, the 2n+1 rule).
 
 pub mod boxlimit;
 pub mod degeneracy;
 pub mod huckel;
 pub mod occupancy;
+pub mod response;
 pub mod spectrum;
 pub mod states;
 pub mod transitions;
@@ -45,6 +49,7 @@ pub use boxlimit::{box_dipole, box_energy, effective_box_length};
 pub use degeneracy::{group_levels, summarize_levels, Degeneracy};
 pub use huckel::{Huckel, HuckelError, HuckelSpec};
 pub use occupancy::{fill, Excitation, Occupancy, OccupancyError};
+pub use response::{static_response, StaticResponse};
 pub use spectrum::{
     absorption, default_wavelength_grid, integrated_strength, LineShape, Spectrum,
     STRENGTH_PER_ABSORPTIVITY,

@@ -166,6 +166,7 @@ pub fn assemble(
             solve_s: 0.0,
             total_s: 0.0,
         },
+        response: None,
     })
 }
 

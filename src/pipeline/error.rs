@@ -104,6 +104,14 @@ pub enum SolveError {
     /// The eigen-solver failed (a computation that could not finish).
     #[error(transparent)]
     Eigen(#[from] EigenError),
+    /// `[response]` without a filling of the levels from level 1 (bad
+    /// input: the electrons' levels were not all computed).
+    #[error("[response] needs every filled level and the LUMO among the computed levels, from level 1; raise levels.count")]
+    ResponseNeedsFilling,
+    /// The response equations could not be solved (a computation that
+    /// could not finish).
+    #[error("static response: {0}")]
+    Response(crate::observables::response::ResponseError),
 }
 
 impl SolveError {
@@ -113,7 +121,8 @@ impl SolveError {
         match self {
             SolveError::TooLarge { .. }
             | SolveError::IllConditioned { .. }
-            | SolveError::NotConverged { .. } => false,
+            | SolveError::NotConverged { .. }
+            | SolveError::Response(_) => false,
             SolveError::Eigen(e) => matches!(e, EigenError::SelectionOutOfRange { .. }),
             _ => true,
         }
@@ -189,9 +198,11 @@ impl SolveError {
             SolveError::Eigen(_) if self.is_input_error() => {
                 at("levels", "levels", self.to_string())
             }
+            SolveError::ResponseNeedsFilling => at("levels.count", "response", self.to_string()),
             SolveError::TooLarge { .. }
             | SolveError::IllConditioned { .. }
             | SolveError::NotConverged { .. }
+            | SolveError::Response(_)
             | SolveError::Eigen(_) => Fault::Compute(self.to_string()),
         }
     }

@@ -26,6 +26,8 @@
 //! - [`accuracy`]: Richardson error estimates and refinement to a tolerance.
 //! - [`spectrum`](mod@spectrum): the absorption spectrum and ring degeneracies of a solution.
 //! - [`cell`]: the periodic cell of a model for the band solver.
+//! - [`response`](mod@response): the static polarizability and
+//!   hyperpolarizabilities of the filled levels, when `[response]` asks.
 //! - [`solution`] and [`error`]: what a solve returns and why it can fail.
 
 pub mod accuracy;
@@ -40,6 +42,7 @@ pub mod guesses;
 pub mod limits;
 pub mod on_grid;
 pub mod record;
+pub mod response;
 pub mod solution;
 pub mod spectrum;
 pub mod warnings;
@@ -85,12 +88,15 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
 
 /// Solves the model with the given options.
 pub fn solve_with(model: &Model, opts: &SolveOptions) -> Result<Solution, SolveError> {
-    if let Resolution::Tolerance(tol) = model.grid.resolution {
-        return accuracy::refine(model, tol, opts);
-    }
-    let mut sol = solve_on(model, &grid_for(model), &opts.eigen)?;
-    if opts.estimate {
-        accuracy::estimate(model, &mut sol, &opts.eigen)?;
-    }
+    let mut sol = if let Resolution::Tolerance(tol) = model.grid.resolution {
+        accuracy::refine(model, tol, opts)?
+    } else {
+        let mut sol = solve_on(model, &grid_for(model), &opts.eigen)?;
+        if opts.estimate {
+            accuracy::estimate(model, &mut sol, &opts.eigen)?;
+        }
+        sol
+    };
+    response::attach(model, &mut sol)?;
     Ok(sol)
 }

@@ -123,6 +123,8 @@ pub struct Solution {
     pub warnings: Vec<String>,
     /// Seconds spent.
     pub timing: Timing,
+    /// The static response of the filled levels, when `[response]` asks.
+    pub response: Option<super::response::Response>,
 }
 
 /// How a tolerance was met.

@@ -4,6 +4,8 @@
 //!
 //! - [`envelope`]: what every document carries (program, input echo).
 //! - [`solve`], [`solve_table`], [`solve_csv`]: one solve.
+//! - [`response`](mod@response): the static response's object, lines and
+//!   scaling exponents.
 //! - [`sweep`]: the sweep document, table and CSV.
 //! - [`fit`] and [`target`]: fits and design targets.
 //! - [`bands`]: the bands document, table and CSV.
@@ -15,6 +17,7 @@ pub mod converge;
 pub mod envelope;
 pub mod figure;
 pub mod fit;
+pub mod response;
 pub mod solve;
 pub mod solve_csv;
 pub mod solve_table;

@@ -90,6 +90,9 @@ pub fn solve_document(
     if let (Some(spec), Some(h)) = (&model.huckel, &sol.huckel) {
         doc.insert("huckel".into(), huckel(model, spec, h));
     }
+    if let Some(r) = super::response::response_json(model, sol, with_timing) {
+        doc.insert("response".into(), r);
+    }
     doc.insert("states".into(), states(model, sol));
     doc.insert(
         "diagnostics".into(),

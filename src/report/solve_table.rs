@@ -115,6 +115,7 @@ pub fn solve_table(model: &Model, sol: &Solution) -> String {
             sr.levels_used, sr.value, sr.expected, 100.0 * sr.completeness
         );
     }
+    s.push_str(&super::response::response_lines(model, sol));
     if let Some(groups) = crate::pipeline::ring_degeneracies(sol) {
         ring_note(&mut s, model, &groups);
     }

@@ -6,7 +6,8 @@
 //! (electrons in the level), then the case's `homo` and `lumo` (level
 //! numbers), `gap (eV)` and `wavelength (nm)` (empty when the input fills
 //! no electrons); headers name the unit as `name (unit)`, the input's
-//! energy unit in place of eV.
+//! energy unit in place of eV. With `[response]`, the case's `alpha (Å³)`,
+//! `beta (au)` and `gamma (au)` follow.
 
 use std::fmt::Write;
 
@@ -27,17 +28,22 @@ pub fn sweep_csv(result: &SweepResult) -> String {
         out.push_str(k);
     }
     let e = result.header.units["energy"].as_str().unwrap_or("eV");
-    let _ = writeln!(
+    let _ = write!(
         out,
         ",n,energy ({e}),occupied,homo,lumo,gap ({e}),wavelength (nm)"
     );
+    let with_response = result.rows.iter().any(|r| r.response.is_some());
+    if with_response {
+        out.push_str(",alpha (Å³),beta (au),gamma (au)");
+    }
+    out.push('\n');
     for row in &result.rows {
         for (n, e) in row.energies() {
             let _ = write!(out, "{}", row.case);
             for v in &row.values {
                 let _ = write!(out, ",{}", v.to_json());
             }
-            let _ = writeln!(
+            let _ = write!(
                 out,
                 ",{n},{e},{},{},{},{},{}",
                 opt(row.electrons_in(n)),
@@ -46,6 +52,17 @@ pub fn sweep_csv(result: &SweepResult) -> String {
                 opt(row.gap()),
                 opt(row.wavelength_nm()),
             );
+            if with_response {
+                let r = row.response.as_ref();
+                let _ = write!(
+                    out,
+                    ",{},{},{}",
+                    opt(r.map(|r| r.alpha)),
+                    opt(r.and_then(|r| r.beta)),
+                    opt(r.and_then(|r| r.gamma)),
+                );
+            }
+            out.push('\n');
         }
     }
     crate::report::no_negative_zero(&out)
@@ -57,6 +74,7 @@ pub fn sweep_csv(result: &SweepResult) -> String {
 pub fn sweep_table(result: &SweepResult) -> String {
     let energy = result.header.units["energy"].as_str().unwrap_or("eV");
     let with_occ = result.rows.iter().any(|r| r.occupancy.is_some());
+    let with_response = result.rows.iter().any(|r| r.response.is_some());
     let mut head: Vec<String> = result.header.keys.clone();
     if with_occ {
         head.extend([
@@ -68,6 +86,9 @@ pub fn sweep_table(result: &SweepResult) -> String {
         ]);
     } else {
         head.extend((1..=4).map(|n| format!("E{n}/{energy}")));
+    }
+    if with_response {
+        head.extend(["alpha/A^3", "gamma/a.u."].map(String::from));
     }
     let mut lines: Vec<Vec<String>> = vec![head];
     for row in &result.rows {
@@ -90,6 +111,15 @@ pub fn sweep_table(result: &SweepResult) -> String {
             );
         } else {
             cells.extend(es.iter().take(4).map(|(_, e)| format!("{e:.6}")));
+        }
+        if with_response {
+            let r = row.response.as_ref();
+            cells.push(r.map(|r| format!("{:.6}", r.alpha)).unwrap_or_default());
+            cells.push(
+                r.and_then(|r| r.gamma)
+                    .map(|g| format!("{g:.6e}"))
+                    .unwrap_or_default(),
+            );
         }
         lines.push(cells);
     }
@@ -117,7 +147,32 @@ pub fn sweep_table(result: &SweepResult) -> String {
         out.push_str(cells.join("  ").trim_end());
         out.push('\n');
     }
+    if let Some(sc) = scaling(result) {
+        let exp = |k: &str| {
+            sc[k]
+                .as_f64()
+                .map(|v| format!("{v:.3}"))
+                .unwrap_or("-".into())
+        };
+        let _ = writeln!(
+            out,
+            "# fitted on a log-log scale: alpha ~ L^{}, gamma ~ L^{} (L the box length)",
+            exp("alpha_exponent"),
+            exp("gamma_exponent")
+        );
+    }
     crate::report::no_negative_zero(&out)
+}
+
+/// The response's scaling exponents over the rows (see
+/// [`super::response::scaling_json`]).
+fn scaling(result: &SweepResult) -> Option<Value> {
+    let records: Vec<_> = result
+        .rows
+        .iter()
+        .filter_map(|r| r.response.as_ref())
+        .collect();
+    super::response::scaling_json(&records)
 }
 
 /// The header's keys of a sweep document (no `rows`, no `complete`).
@@ -162,6 +217,12 @@ pub fn row_json(row: &SweepRow) -> Value {
             serde_json::to_value(o).unwrap_or(Value::Null),
         );
     }
+    if let Some(r) = &row.response {
+        m.insert(
+            "response".into(),
+            serde_json::to_value(r).unwrap_or(Value::Null),
+        );
+    }
     if !row.warnings.is_empty() {
         m.insert("warnings".into(), json!(row.warnings));
     }
@@ -172,6 +233,9 @@ pub fn row_json(row: &SweepRow) -> Value {
 pub fn sweep_document(result: &SweepResult) -> Value {
     let mut doc = header_json(&result.header);
     doc.insert("complete".into(), json!(result.complete));
+    if let Some(sc) = scaling(result) {
+        doc.insert("response_scaling".into(), sc);
+    }
     doc.insert(
         "rows".into(),
         Value::Array(result.rows.iter().map(row_json).collect()),

@@ -21,6 +21,7 @@ use super::cases::{Case, CaseGrid, CaseValue, Shard, Vary};
 use super::runner::Runner;
 use crate::input::{Document, InputError, Model, Override, SourceText};
 use crate::pipeline::record::{level_records, occupancy_record, LevelRecord, OccupancyRecord};
+use crate::pipeline::response::ResponseRecord;
 use crate::pipeline::{self, Fault, SolveError};
 
 /// The format name of sweep documents.
@@ -70,6 +71,8 @@ pub struct SweepRow {
     pub occupancy: Option<OccupancyRecord>,
     /// The solve's warnings for this case.
     pub warnings: Vec<String>,
+    /// The static response, when `[response]` asks for it.
+    pub response: Option<ResponseRecord>,
 }
 
 impl SweepRow {
@@ -209,6 +212,10 @@ pub fn solve_case(case: &Case, model: &Model) -> Result<SweepRow, SolveError> {
         levels: level_records(model, &sol),
         occupancy: sol.occupancy.as_ref().map(|o| occupancy_record(model, o)),
         warnings: sol.warnings.clone(),
+        response: sol
+            .response
+            .as_ref()
+            .map(|r| r.record(model, sol.box_length)),
     })
 }
 
@@ -445,6 +452,13 @@ impl SweepRow {
                 .get("warnings")
                 .and_then(|w| serde_json::from_value(w.clone()).ok())
                 .unwrap_or_default(),
+            response: match v.get("response") {
+                Some(r) => Some(
+                    serde_json::from_value(r.clone())
+                        .map_err(|e| format!("case {case}: bad `response`: {e}"))?,
+                ),
+                None => None,
+            },
         })
     }
 }

@@ -4,14 +4,16 @@
 //! Every value is range-checked here, converted to internal units, and every
 //! fault is reported with the location of the value at fault. One file per
 //! part of the input: `grid` (`[domain]`, `[grid]`), `levels` (`[levels]`,
-//! `[spectrum]`), `chain` (`[chain]`), `huckel` (`[huckel]`) and `terms`
-//! (`[[term]]`, formulas and tables among them); this file holds the entry point, `[units]`,
-//! `[particle]` and the shared value checks.
+//! `[spectrum]`), `chain` (`[chain]`), `huckel` (`[huckel]`), `response`
+//! (`[response]`) and `terms` (`[[term]]`, formulas and tables among them);
+//! this file holds the entry point, `[units]`, `[particle]` and the shared
+//! value checks.
 
 mod chain;
 mod grid;
 mod huckel;
 mod levels;
+mod response;
 mod terms;
 
 use std::collections::BTreeMap;
@@ -151,6 +153,7 @@ impl<'a> Checker<'a> {
             Some(h) => Some(self.check_huckel(h, chain.as_ref(), &domain)?),
             None => None,
         };
+        let response = self.check_response(raw.response.as_ref(), &domain, &levels, &raw)?;
         let mut key_locations = BTreeMap::new();
         let mut note = |key: &str, span: Option<Range<usize>>| {
             if let Some(span) = span {
@@ -176,6 +179,7 @@ impl<'a> Checker<'a> {
             lv.and_then(|l| l.electrons.as_ref().map(Spanned::span))
                 .or_else(|| raw.chain.as_ref().map(|c| c.get_ref().bonds.span())),
         );
+        note("response", raw.response.as_ref().map(Spanned::span));
         let gr = raw.grid.as_ref().map(Spanned::get_ref);
         note("grid", raw.grid.as_ref().map(Spanned::span));
         note(
@@ -203,6 +207,7 @@ impl<'a> Checker<'a> {
             term_locations,
             chain,
             spectrum,
+            response,
             key_locations,
         })
     }
