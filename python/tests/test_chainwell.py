@@ -129,12 +129,12 @@ def test_text_path_pathlike_and_dict_inputs_agree(tmp_path):
 
 
 def test_overrides_as_a_dict_or_as_texts():
-    a = chainwell.solve(BOX, set={"domain.to": 12.0, "levels.count": 2})
-    b = chainwell.solve(BOX, set=["domain.to=12.0", "levels.count=2"])
+    a = chainwell.solve(BOX, set={"domain.to": 12.0, "levels.count": 6})
+    b = chainwell.solve(BOX, set=["domain.to=12.0", "levels.count=6"])
     assert list(a.energies) == list(b.energies)
-    expected = [box_level_ev(n, 12.0) for n in (1, 2)]
+    expected = [box_level_ev(n, 12.0) for n in range(1, 7)]
     np.testing.assert_allclose(a.energies, expected, rtol=1e-8)
-    assert a.to_dict()["input"]["overrides"] == ["domain.to=12.0", "levels.count=2"]
+    assert a.to_dict()["input"]["overrides"] == ["domain.to=12.0", "levels.count=6"]
 
 
 def test_to_below_from_raises_value_error_naming_domain():
