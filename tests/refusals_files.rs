@@ -648,7 +648,7 @@ fn ok(out: &Output) {
     );
 }
 
-/// 2. Writes go through links to their target, keep the target's
+/// Item 2 of the issue: writes go through links to their target, keep the target's
 /// permissions, and write devices in place.
 #[test]
 fn writes_follow_links_keep_modes_and_spare_devices() {
@@ -718,7 +718,7 @@ fn writes_follow_links_keep_modes_and_spare_devices() {
     std::fs::remove_dir_all(&d).unwrap();
 }
 
-/// 6. Shards run in different folders (node-local scratch) merge into the
+/// Item 6 of the issue: shards run in different folders (node-local scratch) merge into the
 /// document of the unsharded run.
 #[test]
 fn shards_from_different_folders_merge() {
@@ -765,7 +765,7 @@ fn shards_from_different_folders_merge() {
     std::fs::remove_dir_all(&root).unwrap();
 }
 
-/// 7. SIGTERM stops a sweep like Ctrl-C: the finished cases are saved and
+/// Item 7 of the issue: SIGTERM stops a sweep like Ctrl-C: the finished cases are saved and
 /// `--resume` finishes the study; no lock is left behind.
 #[test]
 fn sigterm_keeps_the_finished_cases() {
@@ -830,7 +830,7 @@ fn sigterm_keeps_the_finished_cases() {
     std::fs::remove_dir_all(&d).unwrap();
 }
 
-/// 7. A checkpoint that cannot be written loses no row: the document is
+/// Item 7 of the issue: a checkpoint that cannot be written loses no row: the document is
 /// printed and the message says where it could not be written.
 #[test]
 fn a_failed_save_prints_the_document() {
@@ -859,7 +859,7 @@ fn a_failed_save_prints_the_document() {
     std::fs::remove_dir_all(&d).unwrap();
 }
 
-/// 9. A set of CSV files that cannot all be written leaves the old set.
+/// Item 9 of the issue: a set of CSV files that cannot all be written leaves the old set.
 #[test]
 fn solve_csv_set_is_replaced_whole_or_not_at_all() {
     let d = scratch("csvset");
@@ -881,12 +881,16 @@ fn solve_csv_set_is_replaced_whole_or_not_at_all() {
     std::fs::remove_dir_all(&d).unwrap();
 }
 
-/// 11. A byte-order mark before the header of `fit --data` (as spreadsheet
+/// Item 11 of the issue: a byte-order mark before the header of `fit --data` (as spreadsheet
 /// programs write) is accepted, as it is in tables.
 #[test]
 fn a_bom_in_fit_data_is_accepted() {
     let d = scratch("bom");
-    std::fs::write(d.join("in.toml"), CHAIN).unwrap();
+    std::fs::write(
+        d.join("in.toml"),
+        "[chain]\nbonds = 4\n[grid]\npoints = 300\n",
+    )
+    .unwrap();
     std::fs::write(d.join("d.csv"), format!("\u{feff}{DATA}")).unwrap();
     let out = run_in(
         &d,

@@ -231,7 +231,11 @@ fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
     let gib = 1024.0 * 1024.0 * 1024.0;
     let results = memory_estimate(0, kpoints, nbands, threads);
     let change = if bytes - results > bytes / 2.0 {
-        "use a coarser grid.spacing (fewer points per cell) or fewer threads (RAYON_NUM_THREADS)"
+        if threads > 1 && memory_estimate(points, kpoints, nbands, 1) <= MEMORY_LIMIT_BYTES {
+            "use a coarser grid.spacing (fewer points per cell) or fewer threads (RAYON_NUM_THREADS=1)"
+        } else {
+            "use a coarser grid.spacing (fewer points per cell)"
+        }
     } else {
         "use fewer --kpoints (or fewer bands, levels.count)"
     };
@@ -435,6 +439,29 @@ fn band_error(model: &Model, source: &SourceText, cell: &Cell, e: BandsError) ->
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_memory_estimate_counts_the_points_of_the_cell_that_is_built() {
+        for text in [
+            "[chain]\nbonds = 6\nalternation = 1.0\n[grid]\nspacing = 0.05\n",
+            "[chain]\nbonds = 3\nbond_length = 1.3\n",
+            "[domain]\nfrom = 0.0\nto = 2.5\nboundary = \"periodic\"\n[grid]\npoints = 90\n",
+            "[domain]\nfrom = 1.0\nto = 3.0\n[grid]\nspacing = 0.013\n",
+        ] {
+            let (model, _) =
+                crate::input::load_str("t.toml", text.into(), std::path::Path::new("."), &[])
+                    .unwrap();
+            let cell = cell_from_model(&model).unwrap();
+            assert_eq!(cell_points(&model), cell.points(), "{text}");
+        }
+        // Two dense complex 1000 x 1000 matrices (16 bytes an entry) per
+        // thread, and 41 x (2 x 10 + 1) numbers: counted by hand.
+        let bytes = memory_estimate(1000, 41, 10, 2);
+        assert_eq!(
+            bytes,
+            2.0 * (2.0 * 1.0e6 * 16.0 + 64.0 * 1000.0) + 41.0 * 21.0 * 8.0
+        );
+    }
 
     #[test]
     fn bond_counts_parse_ranges_and_lists() {
