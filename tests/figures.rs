@@ -460,10 +460,7 @@ fn pdf_is_valid_with_the_font_embedded() {
     assert!(b.starts_with(b"%PDF-1.7"));
     assert!(text.trim_end().ends_with("%%EOF"));
     // ISO 32000-1 7.5.4: every in-use xref entry points at its object.
-    let sx = b
-        .windows(9)
-        .rposition(|w| w == b"startxref")
-        .unwrap();
+    let sx = b.windows(9).rposition(|w| w == b"startxref").unwrap();
     let tail = std::str::from_utf8(&b[sx + 9..]).unwrap();
     let start: usize = tail.split_whitespace().next().unwrap().parse().unwrap();
     assert!(b[start..].starts_with(b"xref"));
@@ -477,7 +474,11 @@ fn pdf_is_valid_with_the_font_embedded() {
     for (i, e) in entries.iter().enumerate() {
         let off: usize = e[..10].parse().unwrap();
         let head = format!("{} 0 obj", i + 1);
-        assert!(b[off..].starts_with(head.as_bytes()), "object {} at {off}", i + 1);
+        assert!(
+            b[off..].starts_with(head.as_bytes()),
+            "object {} at {off}",
+            i + 1
+        );
     }
     assert!(find(0, b"/FontFile2").is_some());
     assert!(text.contains("/FontFile2"));

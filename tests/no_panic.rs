@@ -548,7 +548,10 @@ fn the_bases_solve() {
 fn a_huge_chain_with_a_jump_is_refused_not_a_panic() {
     let text = "[chain]\nbonds = 1\nend_extension = 1e20\n\n[[term]]\nshape = \"linear\"\nslope = 0.1\nto = 1e20\n";
     check(text, &[]).unwrap();
-    for sets in [vec!["grid.tolerance=1e-6".to_string()], vec!["grid.spacing=0.01".to_string()]] {
+    for sets in [
+        vec!["grid.tolerance=1e-6".to_string()],
+        vec!["grid.spacing=0.01".to_string()],
+    ] {
         check(text, &sets).unwrap();
     }
 }
