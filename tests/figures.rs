@@ -484,9 +484,9 @@ fn pdf_is_valid_with_the_font_embedded() {
     assert!(text.contains("/FontFile2"));
     assert!(text.contains("/Subtype /CIDFontType2"));
     assert!(text.contains("/ToUnicode"));
-    // 8.5 cm x 6 cm is 240.94 pt x 170.08 pt (1 in = 2.54 cm = 72 pt).
+    // 8.5 cm x 6 cm at 300 dpi is 1004 x 709 whole pixels of 72/300 pt.
     assert!(
-        text.contains("/MediaBox [0 0 240.94 170.08]"),
+        text.contains("/MediaBox [0 0 240.96 170.16]"),
         "{}",
         &text[..400]
     );
