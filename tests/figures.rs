@@ -449,37 +449,44 @@ fn pdf_is_valid_with_the_font_embedded() {
         "8.5x6cm".into(),
     ]);
     let b = std::fs::read(&pdf).unwrap();
+    // Offsets count bytes: search the bytes, not decoded text.
+    let find = |from: usize, pat: &[u8]| {
+        b[from..]
+            .windows(pat.len())
+            .position(|w| w == pat)
+            .map(|i| i + from)
+    };
     let text = String::from_utf8_lossy(&b);
     assert!(b.starts_with(b"%PDF-1.7"));
     assert!(text.trim_end().ends_with("%%EOF"));
     // ISO 32000-1 7.5.4: every in-use xref entry points at its object.
-    let start: usize = text
-        .rsplit("startxref")
-        .next()
-        .unwrap()
-        .split_whitespace()
-        .next()
-        .unwrap()
-        .parse()
-        .unwrap();
-    assert!(text[start..].starts_with("xref"));
-    let entries: Vec<&str> = text[start..]
+    let sx = b.windows(9).rposition(|w| w == b"startxref").unwrap();
+    let tail = std::str::from_utf8(&b[sx + 9..]).unwrap();
+    let start: usize = tail.split_whitespace().next().unwrap().parse().unwrap();
+    assert!(b[start..].starts_with(b"xref"));
+    let table = std::str::from_utf8(&b[start..sx]).unwrap();
+    let entries: Vec<&str> = table
         .lines()
-        .skip(2)
-        .take_while(|l| l.ends_with(" n ") || l.ends_with(" n"))
+        .skip(3)
+        .take_while(|l| l.trim_end().ends_with(" n"))
         .collect();
-    assert!(entries.len() >= 9);
+    assert!(entries.len() >= 9, "{table}");
     for (i, e) in entries.iter().enumerate() {
         let off: usize = e[..10].parse().unwrap();
         let head = format!("{} 0 obj", i + 1);
-        assert!(text[off..].starts_with(&head), "object {} at {off}", i + 1);
+        assert!(
+            b[off..].starts_with(head.as_bytes()),
+            "object {} at {off}",
+            i + 1
+        );
     }
+    assert!(find(0, b"/FontFile2").is_some());
     assert!(text.contains("/FontFile2"));
     assert!(text.contains("/Subtype /CIDFontType2"));
     assert!(text.contains("/ToUnicode"));
-    // 8.5 cm x 6 cm is 240.94 pt x 170.08 pt (1 in = 2.54 cm = 72 pt).
+    // 8.5 cm x 6 cm at 300 dpi is 1004 x 709 whole pixels of 72/300 pt.
     assert!(
-        text.contains("/MediaBox [0 0 240.94 170.08]"),
+        text.contains("/MediaBox [0 0 240.96 170.16]"),
         "{}",
         &text[..400]
     );

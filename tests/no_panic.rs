@@ -541,3 +541,17 @@ fn the_bases_solve() {
         );
     }
 }
+
+/// A chain 2e20 Å long with a linear term ending inside it once panicked
+/// with an overflow while the grid was aligned with the term's end.
+#[test]
+fn a_huge_chain_with_a_jump_is_refused_not_a_panic() {
+    let text = "[chain]\nbonds = 1\nend_extension = 1e20\n\n[[term]]\nshape = \"linear\"\nslope = 0.1\nto = 1e20\n";
+    check(text, &[]).unwrap();
+    for sets in [
+        vec!["grid.tolerance=1e-6".to_string()],
+        vec!["grid.spacing=0.01".to_string()],
+    ] {
+        check(text, &sets).unwrap();
+    }
+}

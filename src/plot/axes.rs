@@ -319,12 +319,18 @@ where
     let blank = |_: &f64| String::new();
     let fmt = |v: &f64| nice(*v);
     let (w, h) = chart.plotting_area().dim_in_pixel();
+    let shrink = title_scale(
+        &chart.plotting_area().strip_coord_spec(),
+        px,
+        style,
+        &[(x_desc, w), (y_desc, h)],
+    );
     let mut mesh = chart.configure_mesh();
     mesh.disable_mesh()
         .set_all_tick_mark_size(px.pt(3.0))
         .axis_style(ink.stroke_width(px.thin))
         .label_style(text(px, style, 1.0))
-        .axis_desc_style(text(px, style, 1.0))
+        .axis_desc_style(text(px, style, shrink))
         .x_labels(tick_count(w, px, 5.0))
         .y_labels(y_ticks(h, px))
         .y_label_formatter(&fmt)
@@ -337,6 +343,28 @@ where
     }
     mesh.draw().map_err(draw_err)?;
     outline(&chart.plotting_area().strip_coord_spec(), px, style)
+}
+
+/// The type scale (at most 1) at which every axis title fits the length
+/// of its axis: a title longer than its axis at the full type size (a
+/// long title on a small printed figure) is set smaller rather than run
+/// past the canvas.
+pub(super) fn title_scale<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    px: &Px,
+    style: &Style,
+    titles: &[(&str, u32)],
+) -> f64 {
+    let font = text(px, style, 1.0);
+    titles
+        .iter()
+        .filter(|(t, _)| !t.is_empty())
+        .filter_map(|(t, len)| {
+            let (w, _) = area.estimate_text_size(t, &font).ok()?;
+            (w > 0).then(|| 0.98 * f64::from(*len) / f64::from(w))
+        })
+        .fold(1.0, f64::min)
+        .max(0.3)
 }
 
 /// A thin rectangle around a drawing area.

@@ -259,6 +259,21 @@ pub(super) fn write(scene: &Scene, dpi: f64) -> Result<Vec<u8>, PlotError> {
     let per_mille = |v: f64| format!("{:.1}", v * 1000.0 / upem);
     let ids: Vec<u16> = page.glyphs.keys().copied().collect();
     let program = subset::reduce(font::DEJAVU_SANS, &ids)?;
+    // A reduced font's name carries a tag of six capitals (ISO 32000-1,
+    // 9.6.4), here from an FNV-1a hash (Fowler, Noll and Vo) of the
+    // glyphs it keeps.
+    let tag: String = {
+        let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+        for id in &ids {
+            for b in id.to_be_bytes() {
+                h = (h ^ u64::from(b)).wrapping_mul(0x0100_0000_01b3);
+            }
+        }
+        (0..6)
+            .map(|k| char::from(b'A' + ((h >> (8 * k)) % 26) as u8))
+            .collect()
+    };
+    let name = format!("{tag}+{POSTSCRIPT_NAME}");
 
     let mut doc = Doc {
         bytes: b"%PDF-1.7\n%\xE2\xE3\xCF\xD3\n".to_vec(),
@@ -285,7 +300,7 @@ pub(super) fn write(scene: &Scene, dpi: f64) -> Result<Vec<u8>, PlotError> {
     ));
     doc.stream("", &deflate(page.ops.as_bytes()));
     doc.object(&format!(
-        "<< /Type /Font /Subtype /Type0 /BaseFont /{POSTSCRIPT_NAME} /Encoding /Identity-H \
+        "<< /Type /Font /Subtype /Type0 /BaseFont /{name} /Encoding /Identity-H \
          /DescendantFonts [6 0 R] /ToUnicode 9 0 R >>"
     ));
     let widths: String = ids
@@ -298,14 +313,14 @@ pub(super) fn write(scene: &Scene, dpi: f64) -> Result<Vec<u8>, PlotError> {
         })
         .collect();
     doc.object(&format!(
-        "<< /Type /Font /Subtype /CIDFontType2 /BaseFont /{POSTSCRIPT_NAME} \
+        "<< /Type /Font /Subtype /CIDFontType2 /BaseFont /{name} \
          /CIDSystemInfo << /Registry (Adobe) /Ordering (Identity) /Supplement 0 >> \
          /FontDescriptor 7 0 R /DW 0 /W [{widths}] /CIDToGIDMap /Identity >>"
     ));
     let bb = face.global_bounding_box();
     let cap = f64::from(face.capital_height().unwrap_or(face.ascender()));
     doc.object(&format!(
-        "<< /Type /FontDescriptor /FontName /{POSTSCRIPT_NAME} /Flags 32 \
+        "<< /Type /FontDescriptor /FontName /{name} /Flags 32 \
          /FontBBox [{} {} {} {}] /ItalicAngle 0 /Ascent {} /Descent {} /CapHeight {} \
          /StemV 80 /FontFile2 8 0 R >>",
         per_mille(f64::from(bb.x_min)),

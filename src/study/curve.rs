@@ -3,9 +3,11 @@
 //! whole range, between the data points as well as at them, so a figure
 //! can draw the model as a continuous line.
 //!
-//! A whole-number key (`chain.bonds`) is evaluated at whole numbers only:
-//! every one in the range when there are at most `points` of them, else
-//! `points` of them spread evenly. A real key is evaluated at `points`
+//! A whole-number key (`chain.bonds`) is evaluated only on the lattice the
+//! data lie on (from the smallest value in steps of the greatest common
+//! divisor of the differences: chains of odd bond counts stay odd, since an
+//! even count is another kind of molecule): every such value when there
+//! are at most `points` of them, else `points` of them spread evenly. A real key is evaluated at `points`
 //! evenly spaced values from the smallest to the largest data value.
 
 use std::sync::atomic::{AtomicBool, Ordering};
@@ -29,12 +31,23 @@ pub fn abscissae(data: &[CaseValue], points: usize) -> Vec<CaseValue> {
     }
     if whole {
         let (a, b) = (lo as i64, hi as i64);
-        let span = b.saturating_sub(a);
-        if span < points as i64 {
-            return (a..=b).map(CaseValue::Int).collect();
+        let gcd = |mut x: i64, mut y: i64| {
+            while y != 0 {
+                (x, y) = (y, x % y);
+            }
+            x.abs()
+        };
+        let step = xs
+            .iter()
+            .map(|x| (*x as i64).saturating_sub(a))
+            .fold(0, gcd)
+            .max(1);
+        let count = b.saturating_sub(a) / step;
+        if count < points as i64 {
+            return (0..=count).map(|k| CaseValue::Int(a + k * step)).collect();
         }
         let mut v: Vec<i64> = (0..points)
-            .map(|i| a + ((span as f64) * i as f64 / (points - 1) as f64).round() as i64)
+            .map(|i| a + step * ((count as f64) * i as f64 / (points - 1) as f64).round() as i64)
             .collect();
         v.dedup();
         return v.into_iter().map(CaseValue::Int).collect();
@@ -98,12 +111,13 @@ mod tests {
     use super::*;
 
     #[test]
-    fn whole_numbers_stay_whole_and_cover_the_range() {
+    fn whole_numbers_stay_on_the_datas_lattice() {
+        // Odd counts 3, 5, 9: step 2, so 3, 5, 7, 9 and no even count.
         let d = [CaseValue::Int(3), CaseValue::Int(9), CaseValue::Int(5)];
         let v = abscissae(&d, 100);
-        assert_eq!(v.len(), 7);
-        assert_eq!(v[0], CaseValue::Int(3));
-        assert_eq!(v[6], CaseValue::Int(9));
+        assert_eq!(v, [3, 5, 7, 9].map(CaseValue::Int));
+        let d = [CaseValue::Int(3), CaseValue::Int(4), CaseValue::Int(9)];
+        assert_eq!(abscissae(&d, 100).len(), 7);
         let d = [CaseValue::Int(2), CaseValue::Int(1000)];
         let v = abscissae(&d, 100);
         assert_eq!(v.len(), 100);
