@@ -200,20 +200,17 @@ impl Occupancy {
             });
     }
 
-    /// The warning that explains an open shell, in `units`; `None` for a
-    /// closed shell.
+    /// The warning that explains an open degenerate shell (no gap is
+    /// reported), in `units`; `None` for a closed shell or a radical.
     pub fn open_shell_warning(&self, units: &Units) -> Option<String> {
         if !self.open_shell {
             return None;
         }
         let e = units.energy.label();
+        // A radical keeps its gap (to the next level) and is flagged by
+        // `open_shell` and `singly_occupied`: nothing is withheld to explain.
         if self.homo_group.len() == 1 {
-            return Some(format!(
-                "open shell: level {} holds one electron ({} electrons, an odd count: a radical); the gap is from it to level {}",
-                self.homo,
-                self.electrons,
-                self.lumo.unwrap_or(self.homo + 1)
-            ));
+            return None;
         }
         let first = self.homo_group[0];
         let held: f64 = self
@@ -506,10 +503,7 @@ mod tests {
         assert!(occ.open_shell);
         assert_eq!(occ.homo_group, vec![3]);
         assert_eq!(occ.gap, Some(3.5));
-        let w = occ
-            .open_shell_warning(&Units::default())
-            .expect("a radical is explained");
-        assert!(w.contains("radical") && w.contains("level 3"), "{w}");
+        assert!(occ.open_shell_warning(&Units::default()).is_none());
         assert!(fill(&LEVELS, 1, 6)
             .expect("fits")
             .open_shell_warning(&Units::default())

@@ -229,6 +229,8 @@ mod tests {
             charge: -1,
             ..c
         };
-        assert_eq!(b.electrons(), 4 - 1 + 1);
+        // 5 atoms, one giving none: 4; the anion's extra one: 5.
+        assert_eq!(b.contributions(), 4);
+        assert_eq!(b.electrons(), 5);
     }
 }
