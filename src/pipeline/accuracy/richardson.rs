@@ -33,6 +33,12 @@ pub const ORDER_SLACK: f64 = 0.5;
 /// a fraction between grids in the asymptotic range).
 pub const ORDER_EXCESS: f64 = 1.0;
 
+/// Differences above this many round-off floors that no order explains
+/// widen the estimate; below it they are taken as round-off (common
+/// practice, no source: a computed level is within a few floors of the
+/// exact eigenvalue, so a difference of three solves is within about ten).
+pub const UNEXPLAINED_NOISE: f64 = 64.0;
+
 /// Whether the error of a level is a smooth function of the spacing on the
 /// grids of an estimate.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -114,7 +120,9 @@ pub fn analyse(
     let d3 = e3.map_or(0.0, |e3| (e3 - e1).abs());
     // Differences above noise that change sign, or whose ratio no order
     // explains: the error is not C h^p.
-    let unexplained = e3.is_some() && d2 > noise && d3 > noise && observed.is_none();
+    // Differences within a few floors of each other are round-off, whose
+    // sign means nothing.
+    let unexplained = e3.is_some() && d2.min(d3) > UNEXPLAINED_NOISE * floor && observed.is_none();
     let too_fast = matches!(observed, Some(q) if q > order + ORDER_EXCESS);
     let widened = smoothness == Smoothness::Erratic || unexplained || too_fast;
     let estimate = if widened {
