@@ -30,8 +30,9 @@ pub const ORDER_SLACK: f64 = 0.5;
 
 /// An observed order more than this above the scheme's is not believed
 /// (common practice, no source: a smooth error of order `p` shows `p` plus
-/// a fraction between grids in the asymptotic range).
-pub const ORDER_EXCESS: f64 = 1.0;
+/// a fraction in the asymptotic range, and up to about `p + 2` before it,
+/// as the Morse levels at order 6 do).
+pub const ORDER_EXCESS: f64 = 3.0;
 
 /// Differences above this many round-off floors that no order explains
 /// widen the estimate; below it they are taken as round-off (common
@@ -125,8 +126,10 @@ pub fn analyse(
     let unexplained = e3.is_some() && d2.min(d3) > UNEXPLAINED_NOISE * floor && observed.is_none();
     let too_fast = matches!(observed, Some(q) if q > order + ORDER_EXCESS);
     let widened = smoothness == Smoothness::Erratic || unexplained || too_fast;
-    let estimate = if widened {
+    let estimate = if smoothness == Smoothness::Erratic || unexplained {
         SAFETY * d2.max(d3) + floor
+    } else if too_fast {
+        SAFETY * d2 + floor
     } else {
         SAFETY * term.abs() + floor
     };
