@@ -135,10 +135,15 @@ fn box_order8_codata2022_1e12() {
     let me_2018 = 9.109_383_701_5e-31;
     let length = 12e-10;
     let exact = |n: usize, m: f64| (n * n) as f64 * h * h / (8.0 * m * length * length) / e;
-    let sol = solve(
-        "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\npoints = 199\norder = 8\n[levels]\ncount = 3\n",
-    );
-    for l in &sol.levels {
+    // Level n on 45 n steps: the stencil's error (about 3e-4 (n pi h / L)^8
+    // relative, Fornberg 1988) and round-off (eps ||H||_1, about
+    // 2.6e-13 relative here) both stay below 1e-12.
+    for n in 1..=3usize {
+        let sol = solve(&format!(
+            "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\npoints = {}\norder = 8\n[levels]\nfirst = {n}\ncount = 1\n",
+            45 * n - 1
+        ));
+        let l = &sol.levels[0];
         let rel = (l.energy / exact(l.n, me) - 1.0).abs();
         assert!(rel < 1e-12, "n = {}: {rel:e}", l.n);
         assert!((l.energy / exact(l.n, me_2018) - 1.0).abs() > 1e-9);
@@ -153,7 +158,7 @@ fn box_order8_codata2022_1e12() {
 #[test]
 fn tolerance_1e10_on_12a_box_order8_is_met() {
     let sol = solve(
-        "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\ntolerance = 1e-10\norder = 8\n[levels]\ncount = 3\n",
+        "[domain]\nfrom = 0.0\nto = 12.0\n[grid]\ntolerance = 1e-10\norder = 8\n[levels]\ncount = 4\n",
     );
     // E_n = t (n pi / L)^2 (Griffiths eq. 2.30).
     check_relative(
@@ -240,7 +245,8 @@ fn wall_warning_not_for_window_ending_at_domain_edge() {
     );
     assert!(!walls(&sol), "{:?}", sol.warnings);
     // A harmonic well cut off by a narrow domain: warned, with the edge
-    // values in sensible digits (5/2 * 1.5^2 = 5.625 eV).
+    // values in sensible digits (5/2 (1.5 - 3/601)^2 = 5.58762 eV at the
+    // outermost grid points).
     let sol = solve(
         "[domain]\nfrom = -1.5\nto = 1.5\n[grid]\npoints = 600\n[levels]\ncount = 6\n\
          [[term]]\nshape = \"harmonic\"\ncenter = 0.0\nstiffness = 5.0\n",
@@ -250,7 +256,7 @@ fn wall_warning_not_for_window_ending_at_domain_edge() {
         .iter()
         .find(|w| w.contains("above the potential at the domain's edges"))
         .unwrap_or_else(|| panic!("{:?}", sol.warnings));
-    assert!(w.contains("5.625 eV at the left wall"), "{w}");
+    assert!(w.contains("5.58762 eV next to the left wall"), "{w}");
 }
 
 /// Regression: an alternating chain at order 6 converges at order 4 (the

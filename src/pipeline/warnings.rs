@@ -44,10 +44,11 @@ fn wall_warning(model: &Model, v: &[f64], levels: &[Level]) -> Option<String> {
     if n < 2 || model.potential.terms.is_empty() {
         return None;
     }
-    let rises = |edge: f64, inner: f64| {
-        let slack = 1e-9 * (edge.abs() + inner.abs()) + f64::MIN_POSITIVE;
-        edge > inner + slack
-    };
+    // A rise below 1e-9 of the potential's size (or of the lowest box
+    // level) is flat: the tail of a Gaussian at a wall is meant.
+    let size = v.iter().fold(0.0f64, |m, x| m.max(x.abs()))
+        + model.kinetic() * (std::f64::consts::PI / model.domain.length()).powi(2);
+    let rises = |edge: f64, inner: f64| edge > inner + 1e-9 * size;
     let mut edges: Vec<(&str, f64)> = Vec::new();
     if rises(v[0], v[1]) {
         edges.push(("left", v[0]));
@@ -67,7 +68,7 @@ fn wall_warning(model: &Model, v: &[f64], levels: &[Level]) -> Option<String> {
         .iter()
         .map(|(side, value)| {
             format!(
-                "{} {unit} at the {side} wall",
+                "{} {unit} next to the {side} wall",
                 significant(model.units.energy_out(*value), 6)
             )
         })

@@ -139,6 +139,11 @@ pub fn refine(model: &Model, tol: f64, opts: &SolveOptions) -> Result<Solution, 
         let mut rho = MOST_COARSER;
         let mut best_relative = 0.0f64;
         let mut unreachable = false;
+        // Whether a level that misses its allowance at every predicted
+        // spacing has its discretisation error hidden in round-off (then
+        // the prediction knows too little, and a coarser grid is tried
+        // before refusing).
+        let mut unresolved = false;
         for l in &sol.levels {
             let allow = allowance(tol, l.energy, vmin);
             let est = l.error_estimate.unwrap_or(f64::INFINITY);
@@ -147,7 +152,7 @@ pub fn refine(model: &Model, tol: f64, opts: &SolveOptions) -> Result<Solution, 
                 rho = rho.min(0.5);
                 continue;
             }
-            let q = if l.estimate_widened {
+            let q = if l.estimate_widened && smoothness(&sol.edges) == Smoothness::Erratic {
                 2.0
             } else {
                 l.observed_order.unwrap_or(order).clamp(1.0, order)
@@ -162,6 +167,7 @@ pub fn refine(model: &Model, tol: f64, opts: &SolveOptions) -> Result<Solution, 
                 Some(r) => rho = rho.min(r),
                 None => {
                     unreachable = true;
+                    unresolved |= p.discretisation <= 8.0 * floor;
                     let best = p.at(p.best().min(MOST_COARSER));
                     best_relative = best_relative.max(best / (l.energy - vmin).abs());
                 }
@@ -180,6 +186,12 @@ pub fn refine(model: &Model, tol: f64, opts: &SolveOptions) -> Result<Solution, 
             return Ok(sol);
         }
         if unreachable {
+            let coarser = grid.steps() / 2;
+            let new = !tried.iter().any(|&t| t * 10 <= coarser * 11);
+            if unresolved && new && coarser >= fewest_steps {
+                steps = coarser;
+                continue;
+            }
             return Err(round_off_bound(model, tol, best_relative, grid.points));
         }
         let rho = rho.max(MOST_FINER);
