@@ -32,8 +32,14 @@ fn response(c: &mut Criterion) {
     for bonds in [20usize, 40] {
         for (name, table) in [
             ("solve only", ""),
-            ("with alpha", "[response]\nhyperpolarizabilities = false\nsum_over_states = false\n"),
-            ("with alpha beta gamma", "[response]\nsum_over_states = false\n"),
+            (
+                "with alpha",
+                "[response]\nhyperpolarizabilities = false\nsum_over_states = false\n",
+            ),
+            (
+                "with alpha beta gamma",
+                "[response]\nsum_over_states = false\n",
+            ),
         ] {
             let model = chain(bonds, table);
             group.bench_with_input(BenchmarkId::new(name, bonds), &model, |b, m| {

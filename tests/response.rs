@@ -27,7 +27,10 @@ fn harmonic_well_two_electrons_alpha_is_two_over_k_and_gamma_vanishes() {
     assert!((alpha / (2.0 / k) - 1.0).abs() < 1e-6, "alpha {alpha}");
     let gamma = r.values.gamma.unwrap();
     let box_gamma = box_response(2000, 8).gamma.unwrap();
-    assert!(gamma.abs() < 1e-6 * box_gamma.abs(), "gamma {gamma} vs box {box_gamma}");
+    assert!(
+        gamma.abs() < 1e-6 * box_gamma.abs(),
+        "gamma {gamma} vs box {box_gamma}"
+    );
     // Mirror-symmetric well: beta reported 0.
     assert!(r.values.beta_zero_by_symmetry);
     assert_eq!(r.values.beta, Some(0.0));
@@ -58,13 +61,20 @@ fn ten_angstrom_box_alpha_matches_the_closed_form_sum_over_states() {
         exact += 4.0 * d * d / (e(nf) - e(1.0));
     }
     let r = box_response(2000, 8);
-    assert!((r.alpha / exact - 1.0).abs() < 1e-6, "{} vs {exact}", r.alpha);
+    assert!(
+        (r.alpha / exact - 1.0).abs() < 1e-6,
+        "{} vs {exact}",
+        r.alpha
+    );
     // gamma against bench/response_finite_field.py (numpy, its own
     // second-order grid, finite fields, h^2-extrapolated; default options):
     // -192.7105 e^4 A^4 / eV^3.
     let gamma = r.gamma.unwrap();
     let reference = FINITE_FIELD_GAMMA;
-    assert!((gamma / reference - 1.0).abs() < 5e-3, "{gamma} vs {reference}");
+    assert!(
+        (gamma / reference - 1.0).abs() < 5e-3,
+        "{gamma} vs {reference}"
+    );
 }
 
 /// Output of `python3 bench/response_finite_field.py` (10 A box, 2
@@ -98,7 +108,9 @@ fn a_lopsided_well_agrees_with_finite_fields_of_the_total_energy() {
     let r = sol.response.unwrap().values;
     assert!(!r.beta_zero_by_symmetry);
     let f = 0.02;
-    let e: Vec<f64> = (-3..=3).map(|k| energy_in_field(base, k as f64 * f)).collect();
+    let e: Vec<f64> = (-3..=3)
+        .map(|k| energy_in_field(base, k as f64 * f))
+        .collect();
     let (m3, m2, m1, z, p1, p2, p3) = (e[0], e[1], e[2], e[3], e[4], e[5], e[6]);
     // Sixth-order second derivative: (2(p3+m3) - 27(p2+m2) + 270(p1+m1) - 490 z) / (180 f^2).
     let d2 = (2.0 * (p3 + m3) - 27.0 * (p2 + m2) + 270.0 * (p1 + m1) - 490.0 * z) / (180.0 * f * f);
@@ -107,7 +119,10 @@ fn a_lopsided_well_agrees_with_finite_fields_of_the_total_energy() {
     // Fourth-order fourth derivative: (-(p3+m3) + 12(p2+m2) - 39(p1+m1) + 56 z) / (6 f^4).
     let d4 = (-(p3 + m3) + 12.0 * (p2 + m2) - 39.0 * (p1 + m1) + 56.0 * z) / (6.0 * f.powi(4));
     let close = |got: f64, want: f64, tol: f64, what: &str| {
-        assert!((got / want - 1.0).abs() < tol, "{what}: {got} vs finite field {want}");
+        assert!(
+            (got / want - 1.0).abs() < tol,
+            "{what}: {got} vs finite field {want}"
+        );
     };
     close(r.alpha, -d2, 1e-6, "alpha");
     close(r.beta.unwrap(), -d3, 1e-3, "beta");
@@ -126,7 +141,12 @@ fn numerov_and_finite_differences_agree_on_the_response() {
     let fd = solve(&text("finite-difference")).response.unwrap().values;
     let nu = solve(&text("numerov")).response.unwrap().values;
     // Both fourth order on a fine grid: the same numbers to well below 1e-6.
-    assert!((nu.alpha / fd.alpha - 1.0).abs() < 1e-6, "{} vs {}", nu.alpha, fd.alpha);
+    assert!(
+        (nu.alpha / fd.alpha - 1.0).abs() < 1e-6,
+        "{} vs {}",
+        nu.alpha,
+        fd.alpha
+    );
     assert!((nu.beta.unwrap() / fd.beta.unwrap() - 1.0).abs() < 1e-5);
     assert!((nu.gamma.unwrap() / fd.gamma.unwrap() - 1.0).abs() < 1e-5);
 }
@@ -143,12 +163,25 @@ fn scratch_input(name: &str, text: &str) -> std::path::PathBuf {
 fn a_sweep_of_the_ideal_chain_gives_alpha_growing_as_the_cube_of_its_length() {
     // Free-electron chains: alpha ~ L^3 (K. C. Rustagi and J. Ducuing, Opt.
     // Commun. 10, 258 (1974)).
-    let input = scratch_input("chain.toml", "[chain]\nbonds = 20\n[grid]\nspacing = 0.02\n[response]\n");
+    let input = scratch_input(
+        "chain.toml",
+        "[chain]\nbonds = 20\n[grid]\nspacing = 0.02\n[response]\n",
+    );
     let out = Command::new(bin())
-        .args(["sweep", input.to_str().unwrap(), "--vary", "chain.bonds=20,40", "--json"])
+        .args([
+            "sweep",
+            input.to_str().unwrap(),
+            "--vary",
+            "chain.bonds=20,40",
+            "--json",
+        ])
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
     let a = doc["response_scaling"]["alpha_exponent"].as_f64().unwrap();
     assert!((a - 3.0).abs() < 0.5, "alpha ~ L^{a}");
@@ -158,11 +191,19 @@ fn a_sweep_of_the_ideal_chain_gives_alpha_growing_as_the_cube_of_its_length() {
         assert_eq!(row["response"]["beta"], 0.0);
     }
     let csv = Command::new(bin())
-        .args(["sweep", input.to_str().unwrap(), "--vary", "chain.bonds=20,40"])
+        .args([
+            "sweep",
+            input.to_str().unwrap(),
+            "--vary",
+            "chain.bonds=20,40",
+        ])
         .output()
         .unwrap();
     let table = String::from_utf8_lossy(&csv.stdout);
-    assert!(table.contains("alpha/A^3") && table.contains("alpha ~ L^"), "{table}");
+    assert!(
+        table.contains("alpha/A^3") && table.contains("alpha ~ L^"),
+        "{table}"
+    );
 }
 
 #[test]
@@ -175,13 +216,20 @@ fn the_solve_document_carries_the_response() {
         .args(["solve", input.to_str().unwrap(), "--json"])
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
     let r = &doc["response"];
     // alpha in A^3 is 14.3996 times the internal e^2 A^2 / eV (e^2/4 pi eps0
     // = 14.399645 eV A, from memory); the box's about 11.52 e^2 A^2/eV.
     let alpha = r["alpha"].as_f64().unwrap();
-    assert!((alpha / (11.519_85 * 14.399_645) - 1.0).abs() < 1e-4, "{alpha}");
+    assert!(
+        (alpha / (11.519_85 * 14.399_645) - 1.0).abs() < 1e-4,
+        "{alpha}"
+    );
     assert_eq!(r["beta"], 0.0);
     assert!(r["gamma"].as_f64().unwrap() < 0.0);
     assert!(r["sum_over_states"]["missing_fraction"].as_f64().unwrap() >= 0.0);

@@ -99,7 +99,10 @@ pub fn attach(model: &Model, sol: &mut Solution) -> Result<(), SolveError> {
         return Ok(());
     };
     let start = Instant::now();
-    let occupancy = sol.occupancy.as_ref().ok_or(SolveError::ResponseNeedsFilling)?;
+    let occupancy = sol
+        .occupancy
+        .as_ref()
+        .ok_or(SolveError::ResponseNeedsFilling)?;
     // The checked input keeps the levels from 1 and rings out.
     if occupancy.first_level != 1 || sol.grid.boundary != Boundary::Walls {
         return Err(SolveError::ResponseNeedsFilling);
@@ -137,7 +140,8 @@ pub fn attach(model: &Model, sol: &mut Solution) -> Result<(), SolveError> {
     let scale = sol.potential.iter().fold(0.0f64, |m, v| m.max(v.abs()))
         + sol.levels.iter().fold(0.0f64, |m, l| m.max(l.energy.abs()));
     let symmetric = mirror_symmetric(&sol.potential, MIRROR_TOLERANCE * scale);
-    let values = response::static_response(&pencil, &filled, spec.hyperpolarizabilities, symmetric)?;
+    let values =
+        response::static_response(&pencil, &filled, spec.hyperpolarizabilities, symmetric)?;
     let sum_over_states = spec.sum_over_states.then(|| {
         let energies: Vec<f64> = sol.levels.iter().map(|l| l.energy).collect();
         let a = alpha_sum_over_states(

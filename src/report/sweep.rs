@@ -142,7 +142,12 @@ pub fn sweep_table(result: &SweepResult) -> String {
         out.push('\n');
     }
     if let Some(sc) = scaling(result) {
-        let exp = |k: &str| sc[k].as_f64().map(|v| format!("{v:.3}")).unwrap_or("-".into());
+        let exp = |k: &str| {
+            sc[k]
+                .as_f64()
+                .map(|v| format!("{v:.3}"))
+                .unwrap_or("-".into())
+        };
         let _ = writeln!(
             out,
             "# fitted on a log-log scale: alpha ~ L^{}, gamma ~ L^{} (L the box length)",
@@ -156,7 +161,11 @@ pub fn sweep_table(result: &SweepResult) -> String {
 /// The response's scaling exponents over the rows (see
 /// [`super::response::scaling_json`]).
 fn scaling(result: &SweepResult) -> Option<Value> {
-    let records: Vec<_> = result.rows.iter().filter_map(|r| r.response.as_ref()).collect();
+    let records: Vec<_> = result
+        .rows
+        .iter()
+        .filter_map(|r| r.response.as_ref())
+        .collect();
     super::response::scaling_json(&records)
 }
 

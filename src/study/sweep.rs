@@ -212,7 +212,10 @@ pub fn solve_case(case: &Case, model: &Model) -> Result<SweepRow, SolveError> {
         levels: level_records(model, &sol),
         occupancy: sol.occupancy.as_ref().map(|o| occupancy_record(model, o)),
         warnings: sol.warnings.clone(),
-        response: sol.response.as_ref().map(|r| r.record(model, sol.box_length)),
+        response: sol
+            .response
+            .as_ref()
+            .map(|r| r.record(model, sol.box_length)),
     })
 }
 

@@ -20,7 +20,8 @@ impl Checker<'_> {
     ) -> Result<Option<ResponseSpec>> {
         let Some(r) = r else { return Ok(None) };
         let table = r.get_ref();
-        let flag = |v: &Option<Spanned<bool>>, default: bool| v.as_ref().map_or(default, |b| *b.get_ref());
+        let flag =
+            |v: &Option<Spanned<bool>>, default: bool| v.as_ref().map_or(default, |b| *b.get_ref());
         if !flag(&table.enabled, true) {
             return Ok(None);
         }
@@ -99,11 +100,16 @@ mod tests {
         assert_eq!(load(base).unwrap(), None);
         let on = load(&format!("{base}[response]\n")).unwrap().unwrap();
         assert!(on.hyperpolarizabilities && on.sum_over_states);
-        let alpha_only = load(&format!("{base}[response]\nhyperpolarizabilities = false\n"))
-            .unwrap()
-            .unwrap();
+        let alpha_only = load(&format!(
+            "{base}[response]\nhyperpolarizabilities = false\n"
+        ))
+        .unwrap()
+        .unwrap();
         assert!(!alpha_only.hyperpolarizabilities);
-        assert_eq!(load(&format!("{base}[response]\nenabled = false\n")).unwrap(), None);
+        assert_eq!(
+            load(&format!("{base}[response]\nenabled = false\n")).unwrap(),
+            None
+        );
     }
 
     #[test]

@@ -59,9 +59,13 @@ impl BandedLu {
         }
         for k in 0..n {
             let rows = (p + 1).min(n - k);
-            let best = (0..rows)
-                .max_by(|&a, &b| buf[a * w].abs().total_cmp(&buf[b * w].abs()))
-                .unwrap_or(0);
+            // The first largest, as LAPACK's idamax picks.
+            let mut best = 0;
+            for s in 1..rows {
+                if buf[s * w].abs() > buf[best * w].abs() {
+                    best = s;
+                }
+            }
             piv[k] = best;
             if best != 0 {
                 for j in 0..w {
@@ -150,7 +154,12 @@ mod tests {
         let want = a.clone().lu().solve(&b).unwrap();
         let scale = want.amax().max(1.0);
         for i in 0..n {
-            assert!((x[i] - want[i]).abs() < 1e-11 * scale, "{i}: {} vs {}", x[i], want[i]);
+            assert!(
+                (x[i] - want[i]).abs() < 1e-11 * scale,
+                "{i}: {} vs {}",
+                x[i],
+                want[i]
+            );
         }
     }
 
@@ -166,7 +175,9 @@ mod tests {
                         ((i * 3 + j * 5) % 7) as f64 - 2.5
                     }
                 });
-                if a.clone().lu().solve(&DVector::zeros(n)).is_some() && a.determinant().abs() > 1e-6 {
+                if a.clone().lu().solve(&DVector::zeros(n)).is_some()
+                    && a.determinant().abs() > 1e-6
+                {
                     check(&a, p);
                 }
                 let s = band(n, p, |i, j| {

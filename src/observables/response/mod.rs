@@ -110,10 +110,8 @@ pub fn static_response(
     let mut levels = Vec::with_capacity(filled.len());
     let mut residual = 0.0f64;
     for f in filled {
-        let s = series(pencil, f.vector, hyper).map_err(|source| ResponseError {
-            level: f.n,
-            source,
-        })?;
+        let s = series(pencil, f.vector, hyper)
+            .map_err(|source| ResponseError { level: f.n, source })?;
         residual = residual.max(s.residual);
         levels.push(LevelResponse {
             n: f.n,
@@ -125,9 +123,8 @@ pub fn static_response(
             gamma: s.e4.map(|e4| -24.0 * f.electrons * e4),
         });
     }
-    let total = |part: fn(&LevelResponse) -> Option<f64>| -> Option<f64> {
-        levels.iter().map(part).sum()
-    };
+    let total =
+        |part: fn(&LevelResponse) -> Option<f64>| -> Option<f64> { levels.iter().map(part).sum() };
     let beta_computed = if hyper { total(|l| l.beta) } else { None };
     Ok(StaticResponse {
         alpha: levels.iter().map(|l| l.alpha).sum(),

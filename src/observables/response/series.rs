@@ -299,10 +299,7 @@ mod tests {
         let v: Vec<f64> = x.iter().map(|x| 0.3 * (1.3 * x).sin() + 0.05 * x).collect();
         let a = SymBanded {
             n,
-            bands: vec![
-                v.iter().map(|vi| 2.0 * t + vi).collect(),
-                vec![-t; n - 1],
-            ],
+            bands: vec![v.iter().map(|vi| 2.0 * t + vi).collect(), vec![-t; n - 1]],
             wrap: false,
         };
         (a, x)
@@ -324,7 +321,10 @@ mod tests {
         let others: Vec<usize> = (0..e.len()).filter(|&k| k != level).collect();
         let d = |k: usize| e[k] - e[level];
         let w = |k: usize, l: usize| vm[(k, l)] - if k == l { e1 } else { 0.0 };
-        let e2: f64 = -others.iter().map(|&k| vm[(level, k)].powi(2) / d(k)).sum::<f64>();
+        let e2: f64 = -others
+            .iter()
+            .map(|&k| vm[(level, k)].powi(2) / d(k))
+            .sum::<f64>();
         let mut e3 = 0.0;
         let mut e4 = 0.0;
         for &k in &others {
@@ -336,7 +336,11 @@ mod tests {
                 }
             }
         }
-        e4 -= e2 * others.iter().map(|&k| vm[(level, k)].powi(2) / d(k).powi(2)).sum::<f64>();
+        e4 -= e2
+            * others
+                .iter()
+                .map(|&k| vm[(level, k)].powi(2) / d(k).powi(2))
+                .sum::<f64>();
         [e1, e2, e3, e4]
     }
 
@@ -363,7 +367,12 @@ mod tests {
             x: &x,
         };
         for level in [0, 1, 5] {
-            let z: Vec<f64> = eig.eigenvectors.column(order[level]).iter().copied().collect();
+            let z: Vec<f64> = eig
+                .eigenvectors
+                .column(order[level])
+                .iter()
+                .copied()
+                .collect();
             let s = series(&pencil, &z, true).unwrap();
             let [e1, e2, e3, e4] = sum_over_states(&dense, &vd, level);
             assert_close(s.e1, e1, "E1");

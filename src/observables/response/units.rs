@@ -68,7 +68,11 @@ mod tests {
     fn conversion_factors_match_their_published_values() {
         // 1 a.u. of polarizability volume = a0³ = 0.148 184 7 Å³ (a0 from
         // CODATA 2018).
-        assert_relative_eq!(alpha_angstrom3(alpha_unit()), 0.529_177_210_903f64.powi(3), max_relative = 1e-12);
+        assert_relative_eq!(
+            alpha_angstrom3(alpha_unit()),
+            0.529_177_210_903f64.powi(3),
+            max_relative = 1e-12
+        );
         // e²/(4 pi eps0) = 14.399 645 eV Å: from memory.
         assert_relative_eq!(alpha_angstrom3(1.0), 14.399_645, max_relative = 1e-7);
         // 1 a.u. of beta = 8.639 e-33 esu and of gamma = 5.037 e-40 esu
