@@ -153,13 +153,8 @@ mod tests {
         // Reference: nalgebra's dense LU with partial pivoting.
         let want = a.clone().lu().solve(&b).unwrap();
         let scale = want.amax().max(1.0);
-        for i in 0..n {
-            assert!(
-                (x[i] - want[i]).abs() < 1e-11 * scale,
-                "{i}: {} vs {}",
-                x[i],
-                want[i]
-            );
+        for (i, (got, want)) in x.iter().zip(want.iter()).enumerate() {
+            assert!((got - want).abs() < 1e-11 * scale, "{i}: {got} vs {want}");
         }
     }
 
