@@ -140,14 +140,15 @@ pub fn log_log_slope(points: &[(f64, f64)]) -> Option<f64> {
     (sxx > 0.0).then(|| sxy / sxx)
 }
 
-/// The scaling exponents of a sweep's responses: α ∝ L^a and γ ∝ L^g with
-/// `L` the box length, fitted on a log–log scale over the rows.
+/// The scaling exponents of a sweep's responses: α ∝ L^a and |γ| ∝ L^g
+/// with `L` the box length, fitted on a log–log scale over the rows (γ's
+/// magnitude: a box's γ is negative).
 pub fn scaling_json(records: &[&ResponseRecord]) -> Option<Value> {
     let alpha: Vec<(f64, f64)> = records.iter().map(|r| (r.box_length, r.alpha)).collect();
     let a = log_log_slope(&alpha)?;
     let gamma: Vec<(f64, f64)> = records
         .iter()
-        .filter_map(|r| r.gamma.map(|g| (r.box_length, g)))
+        .filter_map(|r| r.gamma.map(|g| (r.box_length, g.abs())))
         .collect();
     Some(json!({
         "against": "box_length",

@@ -59,9 +59,13 @@ impl BandedLu {
         }
         for k in 0..n {
             let rows = (p + 1).min(n - k);
-            let best = (0..rows)
-                .max_by(|&a, &b| buf[a * w].abs().total_cmp(&buf[b * w].abs()))
-                .unwrap_or(0);
+            // The first largest, as LAPACK's idamax picks.
+            let mut best = 0;
+            for s in 1..rows {
+                if buf[s * w].abs() > buf[best * w].abs() {
+                    best = s;
+                }
+            }
             piv[k] = best;
             if best != 0 {
                 for j in 0..w {
@@ -149,13 +153,8 @@ mod tests {
         // Reference: nalgebra's dense LU with partial pivoting.
         let want = a.clone().lu().solve(&b).unwrap();
         let scale = want.amax().max(1.0);
-        for i in 0..n {
-            assert!(
-                (x[i] - want[i]).abs() < 1e-11 * scale,
-                "{i}: {} vs {}",
-                x[i],
-                want[i]
-            );
+        for (i, (got, want)) in x.iter().zip(want.iter()).enumerate() {
+            assert!((got - want).abs() < 1e-11 * scale, "{i}: {got} vs {want}");
         }
     }
 

@@ -278,7 +278,7 @@ impl Orthogonal<'_> {
             }
             stats.1 += 1;
         }
-        if !(rel <= RESIDUAL_LIMIT) {
+        if rel.is_nan() || rel > RESIDUAL_LIMIT {
             return Err(SeriesError::NotConverged { residual: rel });
         }
         stats.0 = stats.0.max(rel);
