@@ -32,7 +32,11 @@ pub enum EigenError {
         residual: f64,
     },
     /// The estimated working memory exceeds `EigenParams::memory_limit`.
-    #[error("needs about {bytes_needed} bytes, limit is {limit}")]
+    #[error(
+        "needs about {:.1} GB, above the limit of {:.1} GB",
+        *.bytes_needed as f64 / 1e9,
+        *.limit as f64 / 1e9
+    )]
     TooLarge {
         /// Estimated bytes of working memory.
         bytes_needed: usize,

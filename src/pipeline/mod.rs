@@ -15,7 +15,8 @@
 //! - [`gridding`]: the grid a model asks for, aligned with its jumps.
 //! - [`discretise`]: the potential on the grid and the banded Hamiltonian.
 //! - [`guards`]: memory, conditioning and residual checks; the round-off floor.
-//! - [`limits`]: the thresholds and the memory model those checks use.
+//! - [`limits`]: the thresholds those checks use, and the solve's memory
+//!   beside the eigen-solver's.
 //! - [`guesses`]: order-2 levels as shifts for the higher-order schemes.
 //! - [`on_grid`]: one solve on one grid ([`solve_on`]) or its energies only
 //!   ([`energies_on`]).
@@ -47,7 +48,7 @@ mod tests;
 pub use error::{Fault, SolveError};
 pub use gridding::{grid_for, grid_near, interior_edges, wanted_steps};
 pub use guards::roundoff_floor;
-pub use limits::{memory_estimate, MEMORY_LIMIT_BYTES};
+pub use limits::memory_estimate;
 pub use on_grid::{energies_on, solve_on};
 pub use solution::{Diagnostics, EdgeReport, Level, Refinement, RefinementStep, Solution, Timing};
 pub use spectrum::{ring_degeneracies, spectrum};
