@@ -11,9 +11,9 @@
 //! | `Guided` | k vectors, per thread one LDL^T and four work vectors |
 //! | `ShiftInvert` | the Lanczos basis (2 (k + 4) + 40 steps), the locked vectors and their refined copies (3 (k + 4)), one LDL^T |
 //!
-//! Measured on a 10^6-point order-2 chain with 200 levels, a whole solve
-//! peaked at about 9 bytes per point and level (the vectors themselves,
-//! 8 bytes, plus the work arrays), which the `Tridiagonal` row predicts.
+//! The `Tridiagonal` and `Guided` rows come to 8 bytes per point and level
+//! (the level vectors themselves) plus a fixed number of work vectors; the
+//! earlier model charged 24 bytes per point and level for the same path.
 //! The limit defaults to half the machine's memory (`MemTotal` of
 //! `/proc/meminfo`, Linux), and to 4 GiB where that cannot be read.
 
