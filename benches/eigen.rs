@@ -45,6 +45,27 @@ fn ripple(n: usize, p: usize) -> SymBanded {
     }
 }
 
+/// Gaussian well V = -5 exp(-x^2 / 2) eV on [-10, 10] A, order 2p (demo data).
+fn gaussian_well(n: usize, p: usize) -> SymBanded {
+    let h = 20.0 / (n as f64 + 1.0);
+    let c = fd_weights(p);
+    let s = T_E / (h * h);
+    let mut bands = vec![(0..n)
+        .map(|i| {
+            let x = -10.0 + (i + 1) as f64 * h;
+            -s * c[0] - 5.0 * (-0.5 * x * x).exp()
+        })
+        .collect::<Vec<_>>()];
+    for (d, cd) in c.iter().enumerate().skip(1) {
+        bands.push(vec![-s * cd; n - d]);
+    }
+    SymBanded {
+        n,
+        bands,
+        wrap: false,
+    }
+}
+
 fn run(c: &mut Criterion) {
     let mut g = c.benchmark_group("eigen");
     g.sample_size(10);
@@ -111,6 +132,18 @@ fn run(c: &mut Criterion) {
         g.bench_with_input(BenchmarkId::new("numerov_lowest20", n), &n, |b, _| {
             b.iter(|| solve(&pr, &lowest, &auto).unwrap())
         });
+    }
+    // a few levels from the ground state at order 4: one level must cost no
+    // more than three times four levels (Gaussian well, 2000 points)
+    let a = gaussian_well(2000, 2);
+    let pr = Problem { a: &a, b: None };
+    for count in [1usize, 4] {
+        let sel = Selection::Index { first: 0, count };
+        g.bench_with_input(
+            BenchmarkId::new("gauss_order4_lowest", count),
+            &count,
+            |b, _| b.iter(|| solve(&pr, &sel, &auto).unwrap()),
+        );
     }
     // dense baseline
     let a = ripple(1000, 1);

@@ -12,15 +12,14 @@ use nalgebra::DMatrix;
 use super::error::EigenError;
 use super::matrix::Problem;
 
-/// Bytes the dense path needs for dimension n (four n x n matrices).
-pub fn dense_bytes(n: usize) -> usize {
-    n.saturating_mul(n).saturating_mul(8 * 4)
-}
+/// The matrix whose eigenvalues are those of the pencil: A itself, or
+/// C = L^-1 A L^-T with B = L L^T; and L^-T, which maps C's eigenvectors
+/// back to the pencil's.
+type Reduced = (DMatrix<f64>, Option<DMatrix<f64>>);
 
-/// All eigenvalues (ascending) and the matching eigenvectors (columns).
-pub fn dense_eigen(problem: &Problem) -> Result<(Vec<f64>, DMatrix<f64>), EigenError> {
+fn reduce(problem: &Problem) -> Result<Reduced, EigenError> {
     let a = problem.a.to_dense();
-    let (c, linv_t) = match problem.b {
+    Ok(match problem.b {
         None => (a, None),
         Some(b) => {
             let chol = b
@@ -35,7 +34,21 @@ pub fn dense_eigen(problem: &Problem) -> Result<(Vec<f64>, DMatrix<f64>), EigenE
             let c = (&c + c.transpose()) * 0.5;
             (c, Some(linv.transpose()))
         }
-    };
+    })
+}
+
+/// All eigenvalues, ascending, without vectors (one symmetric QR that
+/// never accumulates the rotations).
+pub fn dense_values(problem: &Problem) -> Result<Vec<f64>, EigenError> {
+    let (c, _) = reduce(problem)?;
+    let mut values: Vec<f64> = c.symmetric_eigenvalues().iter().copied().collect();
+    values.sort_by(|x, y| x.total_cmp(y));
+    Ok(values)
+}
+
+/// All eigenvalues (ascending) and the matching eigenvectors (columns).
+pub fn dense_eigen(problem: &Problem) -> Result<(Vec<f64>, DMatrix<f64>), EigenError> {
+    let (c, linv_t) = reduce(problem)?;
     let eig = c.symmetric_eigen();
     let n = eig.eigenvalues.len();
     let mut order: Vec<usize> = (0..n).collect();
@@ -59,6 +72,17 @@ pub fn solve_dense(
     count: usize,
 ) -> Result<(Vec<f64>, Vec<Vec<f64>>), EigenError> {
     let (vals, vecs) = dense_eigen(problem)?;
+    Ok(pick_dense(&vals, &vecs, first, count))
+}
+
+/// Levels `first..first+count` out of a full dense decomposition
+/// ([`dense_eigen`]), vectors with the sign convention of [`fix_sign`].
+pub fn pick_dense(
+    vals: &[f64],
+    vecs: &DMatrix<f64>,
+    first: usize,
+    count: usize,
+) -> (Vec<f64>, Vec<Vec<f64>>) {
     let values = vals[first..first + count].to_vec();
     let vectors = (first..first + count)
         .map(|j| {
@@ -67,7 +91,7 @@ pub fn solve_dense(
             v
         })
         .collect();
-    Ok((values, vectors))
+    (values, vectors)
 }
 
 /// Flips `v` so that its entry of largest magnitude is positive (a

@@ -32,7 +32,11 @@ pub enum EigenError {
         residual: f64,
     },
     /// The estimated working memory exceeds `EigenParams::memory_limit`.
-    #[error("the eigen-solver would need about {:.1} GiB of working memory, above its limit of {:.1} GiB; ask for fewer levels (levels.count) or use a coarser grid (fewer grid.points, a larger grid.spacing)", *.bytes_needed as f64 / 1073741824.0, *.limit as f64 / 1073741824.0)]
+    #[error(
+        "needs about {:.1} GB, above the limit of {:.1} GB",
+        *.bytes_needed as f64 / 1e9,
+        *.limit as f64 / 1e9
+    )]
     TooLarge {
         /// Estimated bytes of working memory.
         bytes_needed: usize,

@@ -51,19 +51,9 @@ pub const REFACTOR_AFTER: usize = 3;
 /// Result of the guided path.
 pub type GuidedOutput = super::params::PathOutput;
 
-/// Deterministic start vector for level `j`: splitmix64 stream, entries in (-1, 1).
+/// The start vector of level `j` of the window.
 fn start_vector(n: usize, j: usize) -> Vec<f64> {
-    let mut s = (j as u64 + 1).wrapping_mul(0xD1B5_4A32_D192_ED03);
-    (0..n)
-        .map(|_| {
-            s = s.wrapping_add(0x9E37_79B9_7F4A_7C15);
-            let mut z = s;
-            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-            z ^= z >> 31;
-            (z >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
-        })
-        .collect()
+    super::subspace::start_vector(n, (j as u64 + 1).wrapping_mul(0xD1B5_4A32_D192_ED03))
 }
 
 /// Lower Gershgorin bound of a banded matrix (wrap included).

@@ -63,11 +63,6 @@ fn m_entry(problem: &Problem, sigma: f64, i: usize, j: usize) -> f64 {
     problem.a.get(i, j) - sigma * b
 }
 
-/// Bytes needed by a factorisation of an n x n matrix of half-bandwidth p.
-pub fn ldlt_bytes(n: usize, p: usize) -> usize {
-    n.saturating_mul(8 * (2 * p + 2))
-}
-
 /// Factorises A - sigma B. `Ok(None)` means a pivot below the guard threshold.
 pub fn factor(problem: &Problem, sigma: f64) -> Result<Option<ShiftedLdlt>, EigenError> {
     let a = problem.a;

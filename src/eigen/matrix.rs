@@ -123,6 +123,32 @@ impl SymBanded {
         }
     }
 
+    /// Rows `rows` of A x into `out` (`out.len() == rows.len()`): the same
+    /// sums as [`Self::mul_vec`] for those rows, for kernels that work on a
+    /// block of rows at a time. Panics if `x` is shorter than n or the rows
+    /// run past n.
+    pub fn mul_rows(&self, x: &[f64], rows: std::ops::Range<usize>, out: &mut [f64]) {
+        let n = self.n;
+        for (o, i) in out.iter_mut().zip(rows) {
+            let mut s = self.bands[0][i] * x[i];
+            for (d, band) in self.bands.iter().enumerate().skip(1) {
+                if self.wrap {
+                    s += band[i] * x[(i + d) % n];
+                    let j = (i + n - d % n) % n;
+                    s += band[j] * x[j];
+                } else {
+                    if i + d < n {
+                        s += band[i] * x[i + d];
+                    }
+                    if i >= d {
+                        s += band[i - d] * x[i - d];
+                    }
+                }
+            }
+            *o = s;
+        }
+    }
+
     /// 1-norm (= infinity norm, A symmetric): max over columns of sum |A_ij|.
     pub fn norm_one(&self) -> f64 {
         let n = self.n;

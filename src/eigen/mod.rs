@@ -11,17 +11,20 @@
 //!
 //! Methods ([`Method`]):
 //! * `Dense` — reference solver, nalgebra's symmetric QR (+ Cholesky reduction
-//!   for B), used by `Auto` for n <= `dense_limit` (default 300).
+//!   for B), used by `Auto` for n <= [`DenseParams::limit`] (default 300).
 //! * `Tridiagonal` — order-2 fast path: Sturm bisection to isolate, Rayleigh
 //!   quotient iteration with twisted factorisations, Rayleigh-Ritz
 //!   ([`tridiagonal`] module docs give the sources).
 //! * `ShiftInvert` — shift-and-invert Lanczos with full
 //!   re-orthogonalisation on a banded (bordered for wrap) LDL^T.
-//! * `Guided` — with one guess per wanted level ([`EigenParams::guesses`]):
+//! * `Guided` — with one guess per wanted level ([`GuidedParams::guesses`]):
 //!   inverse iteration at each guess, Rayleigh-Ritz and an inertia proof
 //!   ([`guided`]); falls back to `ShiftInvert` when the proof fails.
 //!
-//! Diagnostics follow LAPACK's DSTT21/DSTT22 scalings ([`diagnostics`]).
+//! Diagnostics follow LAPACK's DSTT21/DSTT22 scalings ([`diagnostics`]); the
+//! memory each method needs, and the limit it is held to, are in [`memory`].
+//! Each method has its own `*Params` nested in [`EigenParams`] (faer's
+//! style), with documented defaults.
 
 pub mod dense;
 pub mod diagnostics;
@@ -29,6 +32,7 @@ pub mod error;
 pub mod guided;
 pub mod ldlt;
 pub mod matrix;
+pub mod memory;
 pub mod params;
 pub mod shift_invert;
 pub mod solve;
@@ -41,5 +45,8 @@ mod tests;
 
 pub use error::EigenError;
 pub use matrix::{Problem, SymBanded};
-pub use params::{EigenInfo, EigenParams, Eigenpairs, Method, PathOutput, Selection};
-pub use solve::{count_below, solve};
+pub use params::{
+    DenseParams, EigenInfo, EigenParams, Eigenpairs, GuidedParams, LanczosParams, Method,
+    PathOutput, Selection, TridiagonalParams,
+};
+pub use solve::{auto_method, count_below, eigenvalues, solve, solve_unchecked};

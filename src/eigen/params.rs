@@ -21,7 +21,7 @@ pub enum Selection {
 /// Algorithm choice.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Method {
-    /// `Dense` when `n <= dense_limit`; `Tridiagonal` when p = 1, B = I and no wrap;
+    /// `Dense` when `n <=` [`DenseParams::limit`]; `Tridiagonal` when p = 1, B = I and no wrap;
     /// `ShiftInvert` otherwise.
     Auto,
     /// Full dense symmetric eigensolver (O(n^3) time, O(n^2) memory).
@@ -31,60 +31,114 @@ pub enum Method {
     Tridiagonal,
     /// Lanczos on (A - sigma B)^-1 B with a banded (or bordered, for wrap) LDL^T.
     ShiftInvert,
-    /// Index windows only, and only with [`EigenParams::guesses`]: inverse
+    /// Index windows only, and only with [`GuidedParams::guesses`]: inverse
     /// iteration at each guess, Rayleigh-Ritz, and an inertia proof of the
     /// window; falls back to `ShiftInvert` when the proof fails
     /// ([`super::guided`]). `Auto` takes it for a non-tridiagonal problem
-    /// with n > `dense_limit` when guesses are given.
+    /// with n > [`DenseParams::limit`] when guesses are given.
     Guided,
 }
 
-/// Tuning parameters of [`solve`](fn@super::solve). See [`EigenParams::default`].
+/// Tuning parameters of [`solve`](fn@super::solve), one nested struct per
+/// method (each with its own documented defaults) beside the choices that
+/// concern every method. See [`EigenParams::default`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct EigenParams {
     /// Algorithm (default [`Method::Auto`]).
     pub method: Method,
-    /// Largest n that `Auto` sends to the dense solver (default 300).
-    pub dense_limit: usize,
-    /// Refuse work whose estimated memory exceeds this many bytes
-    /// (default 4 GiB = 4 * 2^30).
+    /// Refuse work whose estimated memory ([`super::memory`]) exceeds this
+    /// many bytes (default [`super::memory::default_limit`]: half the
+    /// machine's memory, 4 GiB where it cannot be read).
     pub memory_limit: usize,
-    /// Tridiagonal path: a level's Rayleigh-quotient iteration stops when the
-    /// residual 2-norm ||T z - rho z|| <= residual_tol * eps * ||T||_1
-    /// (default 4.0); it also stops on stagnation once the residual is below
-    /// N eps ||T||_1 / 2 (the LAPACK test scale).
-    pub residual_tol: f64,
-    /// Maximum Rayleigh-quotient / inverse iteration steps per level (tridiagonal path, default 40).
-    pub max_iterations: usize,
-    /// Maximum Lanczos steps per restart (default 0 = automatic:
-    /// 2 (k + 4) + 40 on the first run, doubled on each restart, capped by n).
-    pub max_lanczos: usize,
-    /// Maximum Lanczos restarts to recover missed (e.g. degenerate) levels (default 8).
-    pub max_restarts: usize,
-    /// Approximate eigenvalues of the wanted levels, one per level of a
-    /// [`Selection::Index`] window, ascending (default `None`). They should
-    /// be much closer to their levels than the level spacing (e.g. the
-    /// order-2 eigenvalues of the same potential on the same grid for an
-    /// order-2p problem). They only choose the shifts of [`Method::Guided`]:
-    /// the result is proven by inertia counts, and wrong or missing guesses
-    /// cost time (a fallback to `ShiftInvert`), never correctness. Ignored by
-    /// the other methods and for `Selection::Below`.
-    pub guesses: Option<Vec<f64>>,
+    /// The dense reference solver.
+    pub dense: DenseParams,
+    /// The order-2 (tridiagonal) path.
+    pub tridiagonal: TridiagonalParams,
+    /// Shift-invert Lanczos, the general path and everyone's fallback.
+    pub lanczos: LanczosParams,
+    /// The guided path (inverse iteration at given guesses).
+    pub guided: GuidedParams,
 }
 
 impl Default for EigenParams {
     fn default() -> Self {
         Self {
             method: Method::Auto,
-            dense_limit: 300,
-            memory_limit: 4 << 30,
-            residual_tol: 4.0,
-            max_iterations: 40,
-            max_lanczos: 0,
-            max_restarts: 8,
-            guesses: None,
+            memory_limit: super::memory::default_limit(),
+            dense: DenseParams::default(),
+            tridiagonal: TridiagonalParams::default(),
+            lanczos: LanczosParams::default(),
+            guided: GuidedParams::default(),
         }
     }
+}
+
+/// Parameters of [`Method::Dense`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct DenseParams {
+    /// Largest n that `Auto` sends to the dense solver (default 300).
+    pub limit: usize,
+}
+
+impl Default for DenseParams {
+    fn default() -> Self {
+        Self { limit: 300 }
+    }
+}
+
+/// Parameters of [`Method::Tridiagonal`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TridiagonalParams {
+    /// A level's Rayleigh-quotient iteration stops when the residual 2-norm
+    /// ||T z - rho z|| <= residual_tol * eps * ||T||_1 (default 4.0); it also
+    /// stops on stagnation once the residual is below N eps ||T||_1 / 2 (the
+    /// LAPACK test scale).
+    pub residual_tol: f64,
+    /// Maximum Rayleigh-quotient / inverse iteration steps per level (default 40).
+    pub max_iterations: usize,
+}
+
+impl Default for TridiagonalParams {
+    fn default() -> Self {
+        Self {
+            residual_tol: 4.0,
+            max_iterations: 40,
+        }
+    }
+}
+
+/// Parameters of [`Method::ShiftInvert`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct LanczosParams {
+    /// Maximum Lanczos steps per restart (default 0 = automatic:
+    /// 2 (k + 4) + 40 on the first run, doubled on each restart, capped by n).
+    pub max_steps: usize,
+    /// Maximum Lanczos restarts to recover missed (e.g. degenerate) levels (default 8).
+    pub max_restarts: usize,
+}
+
+impl Default for LanczosParams {
+    fn default() -> Self {
+        Self {
+            max_steps: 0,
+            max_restarts: 8,
+        }
+    }
+}
+
+/// Parameters of [`Method::Guided`].
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct GuidedParams {
+    /// Approximate eigenvalues of the wanted levels, one per level of a
+    /// [`Selection::Index`] window, ascending (default `None`). They should
+    /// be much closer to their levels than the level spacing (e.g. the
+    /// Rayleigh quotients of the order-2 eigenvectors of the same potential
+    /// on the same grid for an order-2p problem). They only choose the
+    /// shifts of [`Method::Guided`]: the result is proven by inertia counts,
+    /// and wrong or missing guesses cost time (a fallback to `ShiftInvert`),
+    /// never correctness. Ignored by the other methods and for
+    /// `Selection::Below`.
+    pub guesses: Option<Vec<f64>>,
 }
 
 /// Computed eigenpairs.
@@ -114,6 +168,10 @@ pub struct EigenInfo {
     pub inertia_below: usize,
     /// max_j ||A z_j - E_j B z_j||_1 / (||A||_1 N eps) (LAPACK DSTT21 form).
     pub residual_ratio: f64,
+    /// ||A z_j - E_j B z_j||_1 of each returned pair, in the order of the
+    /// values: computed once, for [`Self::residual_ratio`] and for the
+    /// caller's per-level checks ([`super::diagnostics::pair_ratio`]).
+    pub residual_norms: Vec<f64>,
     /// ||Z^T B Z - I||_1 / (k eps) (LAPACK DSTT21 form).
     pub orthogonality_ratio: f64,
 }

@@ -32,15 +32,6 @@ use super::subspace::{combine, dot, project, rayleigh_ritz, subtract_combination
 /// Result of the shift-invert path.
 pub type ShiftInvertOutput = super::params::PathOutput;
 
-/// Bytes needed: the Lanczos basis of `steps` vectors, the locked vectors and
-/// one factorisation.
-pub fn shift_invert_bytes(n: usize, p: usize, count: usize, steps: usize) -> usize {
-    let vecs = steps + 2 * count + 16;
-    n.saturating_mul(8)
-        .saturating_mul(vecs)
-        .saturating_add(super::ldlt::ldlt_bytes(n, p))
-}
-
 /// Gershgorin interval [lo, hi] of a banded matrix.
 fn gershgorin(a: &SymBanded) -> (f64, f64) {
     let n = a.n;
@@ -60,21 +51,12 @@ fn gershgorin(a: &SymBanded) -> (f64, f64) {
     (lo, hi)
 }
 
-/// A deterministic pseudo-random vector (splitmix64 stream), entries in (-1, 1).
+/// The start vector of Lanczos run `seed` (1 for the first run).
 fn start_vector(n: usize, seed: u64) -> Vec<f64> {
-    let mut s = seed
+    let state = seed
         .wrapping_mul(0x9E37_79B9_7F4A_7C15)
         .wrapping_add(0x1234_5678);
-    (0..n)
-        .map(|_| {
-            s = s.wrapping_add(0x9E37_79B9_7F4A_7C15);
-            let mut z = s;
-            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-            z ^= z >> 31;
-            (z >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
-        })
-        .collect()
+    super::subspace::start_vector(n, state)
 }
 
 struct Counter<'p, 'a> {
@@ -236,6 +218,24 @@ fn lanczos(
     (v, ritz)
 }
 
+/// The inertia counts accepted for the shift of a window `first..first +
+/// count`: its middle half, and never a shift below the whole spectrum.
+///
+/// A count of `first` alone would also accept a shift anywhere below level
+/// `first`; for `first = 0` that is anywhere below the whole spectrum, down
+/// to the Gershgorin bound, which for a stencil of order 4-8 lies a sizeable
+/// fraction of ||A|| below the lowest level. There all 1/(E - sigma) are
+/// nearly equal and Lanczos needs hundreds of steps instead of tens.
+/// Requiring at least one eigenvalue below the shift puts it above the
+/// ground state and next to the wanted levels; the upper count then admits
+/// one more level, so that a pair closer than rounding (a tunnel doublet)
+/// can be stepped over.
+fn shift_window(first: usize, count: usize) -> (usize, usize) {
+    let lo = (first + count / 4).max(1);
+    let hi = (first + count - count / 4).max(lo + 1);
+    (lo, hi)
+}
+
 /// Factorises at a shift whose inertia count lies in `acc_lo..=acc_hi`, found
 /// by bisection (geometric while the bracket spans a large ratio above `glo`).
 fn place_shift(
@@ -313,13 +313,8 @@ pub fn solve_shift_invert(
         }
         ghi += 4.0 * (ghi.abs() + 1.0);
     }
-    let mut f = place_shift(
-        &mut ctr,
-        glo,
-        ghi,
-        first + count / 4,
-        first + count - count / 4,
-    )?;
+    let (acc_lo, acc_hi) = shift_window(first, count);
+    let mut f = place_shift(&mut ctr, glo, ghi, acc_lo, acc_hi)?;
     let mut c_sigma = f.negatives;
     let mut sigma = f.sigma;
     let mut need_next = count + 4;
@@ -449,7 +444,8 @@ pub fn solve_shift_invert(
             };
             if let Some((mlo, mhi)) = missing {
                 let w = mhi - mlo;
-                f = place_shift(&mut ctr, glo, ghi, mlo + w / 4, mhi - w / 4)?;
+                let (acc_lo, acc_hi) = shift_window(mlo, w);
+                f = place_shift(&mut ctr, glo, ghi, acc_lo, acc_hi)?;
                 c_sigma = f.negatives;
                 sigma = f.sigma;
                 need_next = w + extra;

@@ -1,16 +1,17 @@
 //! Entry points: [`solve`] (selection handling, method choice, memory check,
 //! diagnostics) and [`count_below`] (Sturm count / Sylvester inertia).
 
-use super::dense::{dense_bytes, dense_eigen, solve_dense};
-use super::diagnostics::{orthogonality_ratio, residual_ratio};
+use super::dense::{dense_eigen, dense_values, pick_dense};
+use super::diagnostics::{orthogonality_ratio, residual_norms, residual_ratio};
 use super::error::EigenError;
 use super::guided::solve_guided;
 use super::ldlt::{factor, factor_guarded};
 use super::matrix::Problem;
+use super::memory::eigen_bytes;
 use super::params::{EigenInfo, EigenParams, Eigenpairs, Method, PathOutput, Selection};
-use super::shift_invert::{shift_invert_bytes, solve_shift_invert};
+use super::shift_invert::solve_shift_invert;
 use super::sturm::SturmData;
-use super::tridiagonal::{solve_tridiagonal, tridiagonal_bytes};
+use super::tridiagonal::solve_tridiagonal;
 
 /// Checks that B (if given) is positive definite by an LDL^T factorisation.
 fn check_b(problem: &Problem) -> Result<(), EigenError> {
@@ -48,6 +49,23 @@ pub fn count_below(problem: &Problem, sigma: f64) -> Result<usize, EigenError> {
     Ok(factor_guarded(problem, sigma)?.negatives)
 }
 
+/// The method [`Method::Auto`] takes for an n x n problem: `Dense` up to
+/// [`DenseParams::limit`](super::DenseParams), `Tridiagonal` for a plain
+/// tridiagonal matrix, `Guided` when guesses are given for an index window
+/// (`guided`), `ShiftInvert` otherwise. The one owner of this rule: callers
+/// that plan memory ([`super::memory::eigen_bytes`]) ask it too.
+pub fn auto_method(params: &EigenParams, n: usize, tridiagonal: bool, guided: bool) -> Method {
+    if n <= params.dense.limit {
+        Method::Dense
+    } else if tridiagonal {
+        Method::Tridiagonal
+    } else if guided {
+        Method::Guided
+    } else {
+        Method::ShiftInvert
+    }
+}
+
 /// Computes the selected eigenpairs of A x = E B x.
 ///
 /// Errors: `Shape` for inconsistent input, `SelectionOutOfRange`,
@@ -70,6 +88,52 @@ pub fn solve(
     selection: &Selection,
     params: &EigenParams,
 ) -> Result<(Eigenpairs, EigenInfo), EigenError> {
+    run(problem, selection, params, Output::Checked)
+}
+
+/// As [`solve`], without the diagnostics: `residual_ratio` and
+/// `orthogonality_ratio` are NaN and `residual_norms` is empty. For callers
+/// that use the pairs as a means (guesses, starting data), not as results:
+/// it saves the k residual products and the O(N k^2) orthogonality check.
+pub fn solve_unchecked(
+    problem: &Problem,
+    selection: &Selection,
+    params: &EigenParams,
+) -> Result<(Eigenpairs, EigenInfo), EigenError> {
+    run(problem, selection, params, Output::Unchecked)
+}
+
+/// The eigenvalues of the selected levels only, proven complete by the same
+/// inertia counts as [`solve`] (`vectors` empty, diagnostics NaN): the order-2
+/// path keeps no vectors and skips Rayleigh-Ritz (each value is its level's
+/// converged Rayleigh quotient, inside its Sturm bracket), the dense path
+/// diagonalises once without vectors. The banded paths need their vectors
+/// internally and only drop them and the diagnostics.
+pub fn eigenvalues(
+    problem: &Problem,
+    selection: &Selection,
+    params: &EigenParams,
+) -> Result<(Eigenpairs, EigenInfo), EigenError> {
+    run(problem, selection, params, Output::Values)
+}
+
+/// What a run returns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Output {
+    /// Pairs and diagnostics.
+    Checked,
+    /// Pairs, no diagnostics.
+    Unchecked,
+    /// Values only.
+    Values,
+}
+
+fn run(
+    problem: &Problem,
+    selection: &Selection,
+    params: &EigenParams,
+    output: Output,
+) -> Result<(Eigenpairs, EigenInfo), EigenError> {
     problem.validate()?;
     check_b(problem)?;
     let n = problem.n();
@@ -83,24 +147,19 @@ pub fn solve(
         Selection::Below { energy } => (0, count_below(problem, energy)?),
     };
     let mut method = match params.method {
-        Method::Auto => {
-            if n <= params.dense_limit {
-                Method::Dense
-            } else if is_tridiagonal(problem) {
-                Method::Tridiagonal
-            } else if params.guesses.is_some() && matches!(selection, Selection::Index { .. }) {
-                Method::Guided
-            } else {
-                Method::ShiftInvert
-            }
-        }
+        Method::Auto => auto_method(
+            params,
+            n,
+            is_tridiagonal(problem),
+            params.guided.guesses.is_some() && matches!(selection, Selection::Index { .. }),
+        ),
         Method::Tridiagonal if !is_tridiagonal(problem) => {
             return Err(EigenError::Shape {
                 what: "Tridiagonal needs p = 1, B = I and no wrap".into(),
             })
         }
         Method::Guided
-            if params.guesses.is_none() || !matches!(selection, Selection::Index { .. }) =>
+            if params.guided.guesses.is_none() || !matches!(selection, Selection::Index { .. }) =>
         {
             return Err(EigenError::Shape {
                 what: "Guided needs an index selection and guesses".into(),
@@ -108,38 +167,39 @@ pub fn solve(
         }
         m => m,
     };
-    if method == Method::Guided && params.guesses.as_ref().is_some_and(|g| g.len() != count) {
+    if method == Method::Guided
+        && params
+            .guided
+            .guesses
+            .as_ref()
+            .is_some_and(|g| g.len() != count)
+    {
         return Err(EigenError::Shape {
             what: format!("{count} levels wanted but guesses given for a different number"),
         });
     }
     let p = problem.a.half_bandwidth();
-    let bytes = match method {
-        Method::Dense => dense_bytes(n),
-        Method::Tridiagonal => tridiagonal_bytes(n, count),
-        _ => {
-            let steps = if params.max_lanczos > 0 {
-                params.max_lanczos
-            } else {
-                2 * count + 48
-            };
-            shift_invert_bytes(n, p, count, steps)
+    let fits = |method: Method| {
+        let bytes = eigen_bytes(method, n, p, count);
+        if bytes > params.memory_limit {
+            return Err(EigenError::TooLarge {
+                bytes_needed: bytes,
+                limit: params.memory_limit,
+            });
         }
+        Ok(())
     };
-    if bytes > params.memory_limit {
-        return Err(EigenError::TooLarge {
-            bytes_needed: bytes,
-            limit: params.memory_limit,
-        });
-    }
-    // Shift-invert Lanczos: the general path, and the fallback of the others.
+    fits(method)?;
+    // Shift-invert Lanczos: the general path, and the fallback of the others
+    // (which must fit too: its basis is larger than their vectors)
     let lanczos = || {
+        fits(Method::ShiftInvert)?;
         solve_shift_invert(
             problem,
             first,
             count,
-            params.max_lanczos,
-            params.max_restarts,
+            params.lanczos.max_steps,
+            params.lanczos.max_restarts,
         )
     };
     let PathOutput {
@@ -159,11 +219,18 @@ pub fn solve(
     } else {
         match method {
             Method::Dense => {
-                let (vals, vecs) = solve_dense(problem, first, count)?;
-                // confirm the window with one inertia count above it
-                let all = dense_eigen_upper(problem, first + count)?;
-                let top = match all {
-                    Some(next) => 0.5 * (vals[count - 1] + next),
+                // one dense diagonalisation gives the window and the level
+                // above it, which places the confirming inertia count
+                let (all, vecs) = if output == Output::Values {
+                    (dense_values(problem)?, Vec::new())
+                } else {
+                    let (all, vecs) = dense_eigen(problem)?;
+                    let (_, picked) = pick_dense(&all, &vecs, first, count);
+                    (all, picked)
+                };
+                let vals = all[first..first + count].to_vec();
+                let top = match all.get(first + count) {
+                    Some(&next) => 0.5 * (vals[count - 1] + next),
                     None => vals[count - 1] + 1.0 + vals[count - 1].abs(),
                 };
                 PathOutput {
@@ -179,8 +246,9 @@ pub fn solve(
                     problem.a,
                     first,
                     count,
-                    params.residual_tol,
-                    params.max_iterations,
+                    params.tridiagonal.residual_tol,
+                    params.tridiagonal.max_iterations,
+                    output != Output::Values,
                 ) {
                     Ok(o) => o,
                     // levels closer than rounding: Auto falls back to Lanczos with locking
@@ -192,7 +260,7 @@ pub fn solve(
                 }
             }
             Method::Guided => {
-                let guesses = params.guesses.as_deref().unwrap_or_default();
+                let guesses = params.guided.guesses.as_deref().unwrap_or_default();
                 if let Some(o) = solve_guided(problem, first, count, guesses)? {
                     o
                 } else {
@@ -204,13 +272,29 @@ pub fn solve(
             _ => lanczos()?,
         }
     };
+    let vectors = if output == Output::Values {
+        Vec::new()
+    } else {
+        vectors
+    };
+    let (residual_ratio, residual_norms, orthogonality_ratio) = if output == Output::Checked {
+        let norms = residual_norms(problem, &values, &vectors);
+        (
+            residual_ratio(problem, &norms),
+            norms,
+            orthogonality_ratio(problem, &vectors),
+        )
+    } else {
+        (f64::NAN, Vec::new(), f64::NAN)
+    };
     let info = EigenInfo {
         method,
         iterations,
         factorizations,
         inertia_below,
-        residual_ratio: residual_ratio(problem, &values, &vectors),
-        orthogonality_ratio: orthogonality_ratio(problem, &vectors),
+        residual_ratio,
+        residual_norms,
+        orthogonality_ratio,
     };
     Ok((
         Eigenpairs {
@@ -220,13 +304,4 @@ pub fn solve(
         },
         info,
     ))
-}
-
-/// The eigenvalue with index `idx` (None past the end), dense.
-fn dense_eigen_upper(problem: &Problem, idx: usize) -> Result<Option<f64>, EigenError> {
-    if idx >= problem.n() {
-        return Ok(None);
-    }
-    let (vals, _) = dense_eigen(problem)?;
-    Ok(Some(vals[idx]))
 }

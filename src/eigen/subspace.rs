@@ -4,6 +4,8 @@
 //! Problem*, 1998, sec. 11.3). Partial sums are combined in a fixed row-block
 //! order, so results do not depend on the number of threads.
 
+use std::ops::Range;
+
 use nalgebra::DMatrix;
 use rayon::prelude::*;
 
@@ -11,6 +13,25 @@ use super::error::EigenError;
 use super::matrix::Problem;
 
 const BLOCK: usize = 2048;
+
+/// A deterministic pseudo-random start vector, entries in (-1, 1): the
+/// splitmix64 stream (Steele, Lea & Flood, OOPSLA 2014) from the state
+/// `state`. Every method draws its start vectors here; each picks its own
+/// states (one stream per restart or per level), so results do not depend
+/// on the order in which levels run.
+pub fn start_vector(n: usize, state: u64) -> Vec<f64> {
+    let mut s = state;
+    (0..n)
+        .map(|_| {
+            s = s.wrapping_add(0x9E37_79B9_7F4A_7C15);
+            let mut z = s;
+            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+            z ^= z >> 31;
+            (z >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+        })
+        .collect()
+}
 
 /// Dot product with 8 independent partial sums (vectorisable, fixed order).
 pub fn dot(x: &[f64], y: &[f64]) -> f64 {
@@ -30,80 +51,81 @@ pub fn dot(x: &[f64], y: &[f64]) -> f64 {
     s
 }
 
-/// G = X^T Y (k1 x k2). When `symmetric`, X = Y is assumed and only the upper
-/// triangle is computed and mirrored.
+/// Rows `r` of the vectors as the columns of a matrix (`r.len()` x k), so
+/// that a block's products run as one matrix product (nalgebra's blocked
+/// kernels) instead of k^2 separate dot products.
+fn pack<V: AsRef<[f64]>>(x: &[V], r: Range<usize>) -> DMatrix<f64> {
+    let mut m = DMatrix::zeros(r.len(), x.len());
+    for (j, v) in x.iter().enumerate() {
+        m.column_mut(j).copy_from_slice(&v.as_ref()[r.clone()]);
+    }
+    m
+}
+
+/// The row blocks of vectors of length n.
+fn row_blocks(n: usize) -> Vec<Range<usize>> {
+    (0..n.div_ceil(BLOCK))
+        .map(|b| b * BLOCK..((b + 1) * BLOCK).min(n))
+        .collect()
+}
+
+/// Sums per-block matrices in block order (independent of the threads).
+fn sum_parts(parts: Vec<DMatrix<f64>>, rows: usize, cols: usize) -> DMatrix<f64> {
+    let mut g = DMatrix::zeros(rows, cols);
+    for p in parts {
+        g += p;
+    }
+    g
+}
+
+/// Copies the upper triangle onto the lower one.
+fn mirror_upper(g: &mut DMatrix<f64>) {
+    for i in 0..g.nrows() {
+        for j in 0..i {
+            g[(i, j)] = g[(j, i)];
+        }
+    }
+}
+
+/// G = X^T Y (k1 x k2). When `symmetric`, X = Y is assumed and the result
+/// is made exactly symmetric from its upper triangle.
 pub fn gram(x: &[Vec<f64>], y: &[Vec<f64>], symmetric: bool) -> DMatrix<f64> {
     let (k1, k2) = (x.len(), y.len());
     if k1 == 0 || k2 == 0 {
         return DMatrix::zeros(k1, k2);
     }
-    let n = x[0].len();
-    let nb = n.div_ceil(BLOCK);
-    let parts: Vec<DMatrix<f64>> = (0..nb)
+    let parts: Vec<DMatrix<f64>> = row_blocks(x[0].len())
         .into_par_iter()
-        .map(|b| {
-            let r = b * BLOCK..((b + 1) * BLOCK).min(n);
-            let mut g = DMatrix::zeros(k1, k2);
-            for i in 0..k1 {
-                let j0 = if symmetric { i } else { 0 };
-                for j in j0..k2 {
-                    g[(i, j)] = dot(&x[i][r.clone()], &y[j][r.clone()]);
-                }
+        .map(|r| {
+            let xb = pack(x, r.clone());
+            if symmetric {
+                xb.tr_mul(&xb)
+            } else {
+                xb.tr_mul(&pack(y, r))
             }
-            g
         })
         .collect();
-    let mut g = DMatrix::zeros(k1, k2);
-    for p in parts {
-        g += p;
-    }
+    let mut g = sum_parts(parts, k1, k2);
     if symmetric {
-        for i in 0..k1 {
-            for j in 0..i {
-                g[(i, j)] = g[(j, i)];
-            }
-        }
+        mirror_upper(&mut g);
     }
     g
 }
 
-/// H = (X^T Y + Y^T X)/2 from the upper triangle only (Y = A X with A symmetric).
+/// H = (X^T Y + Y^T X)/2 (Y = A X with A symmetric).
 pub fn gram_sym_pair(x: &[Vec<f64>], y: &[Vec<f64>]) -> DMatrix<f64> {
     let k = x.len();
     if k == 0 {
         return DMatrix::zeros(0, 0);
     }
-    let n = x[0].len();
-    let nb = n.div_ceil(BLOCK);
-    let parts: Vec<DMatrix<f64>> = (0..nb)
+    let parts: Vec<DMatrix<f64>> = row_blocks(x[0].len())
         .into_par_iter()
-        .map(|b| {
-            let r = b * BLOCK..((b + 1) * BLOCK).min(n);
-            let mut g = DMatrix::zeros(k, k);
-            for i in 0..k {
-                for j in i..k {
-                    let v = if i == j {
-                        dot(&x[i][r.clone()], &y[j][r.clone()])
-                    } else {
-                        0.5 * (dot(&x[i][r.clone()], &y[j][r.clone()])
-                            + dot(&x[j][r.clone()], &y[i][r.clone()]))
-                    };
-                    g[(i, j)] = v;
-                }
-            }
-            g
-        })
+        .map(|r| pack(x, r.clone()).tr_mul(&pack(y, r)))
         .collect();
-    let mut g = DMatrix::zeros(k, k);
-    for p in parts {
-        g += p;
-    }
-    for i in 0..k {
-        for j in 0..i {
-            g[(i, j)] = g[(j, i)];
-        }
-    }
-    g
+    let g = sum_parts(parts, k, k);
+    let mut h = (&g + g.transpose()) * 0.5;
+    mirror_upper(&mut h);
+    h
 }
 
 /// Z = X Q: `z[j] = sum_i x[i] * q[(i, j)]`.
@@ -115,29 +137,16 @@ pub fn combine(x: &[Vec<f64>], q: &DMatrix<f64>) -> Vec<Vec<f64>> {
     let n = x[0].len();
     let mut z = vec![vec![0.0; n]; k];
     // parallel over output row blocks: each entry is computed by one thread
-    let nb = n.div_ceil(BLOCK);
-    let blocks: Vec<Vec<Vec<f64>>> = (0..nb)
+    let blocks: Vec<(Range<usize>, DMatrix<f64>)> = row_blocks(n)
         .into_par_iter()
-        .map(|b| {
-            let r = b * BLOCK..((b + 1) * BLOCK).min(n);
-            let mut out = vec![vec![0.0; r.len()]; k];
-            for (j, o) in out.iter_mut().enumerate() {
-                for (i, xi) in x.iter().enumerate() {
-                    let c = q[(i, j)];
-                    if c != 0.0 {
-                        for (ov, xv) in o.iter_mut().zip(&xi[r.clone()]) {
-                            *ov += c * xv;
-                        }
-                    }
-                }
-            }
-            out
+        .map(|r| {
+            let out = pack(x, r.clone()) * q;
+            (r, out)
         })
         .collect();
-    for (b, out) in blocks.into_iter().enumerate() {
-        let s = b * BLOCK;
-        for (zj, oj) in z.iter_mut().zip(out) {
-            zj[s..s + oj.len()].copy_from_slice(&oj);
+    for (r, out) in blocks {
+        for (j, zj) in z.iter_mut().enumerate() {
+            zj[r.clone()].copy_from_slice(out.column(j).as_slice());
         }
     }
     z
@@ -191,28 +200,35 @@ pub fn rayleigh_ritz_in_place(
 ) -> Result<(Vec<f64>, Vec<Vec<f64>>), EigenError> {
     let k = x.len();
     let n = problem.n();
-    let projected = |m: &super::matrix::SymBanded| -> DMatrix<f64> {
-        let cols: Vec<Vec<f64>> = (0..k)
-            .into_par_iter()
-            .map(|j| {
-                let mut y = vec![0.0; n];
-                m.mul_vec(&x[j], &mut y);
-                (0..k).map(|i| dot(&x[i], &y)).collect()
-            })
-            .collect();
-        let mut h = DMatrix::zeros(k, k);
-        for (j, col) in cols.iter().enumerate() {
-            for (i, v) in col.iter().enumerate() {
-                h[(i, j)] = *v;
-            }
-        }
-        (&h + h.transpose()) * 0.5
-    };
-    let h = projected(problem.a);
-    let g = match problem.b {
-        None => gram(&x, &x, true),
-        Some(b) => projected(b),
-    };
+    // X^T A X and X^T B X block by block: each block's A x_j (and B x_j)
+    // rows are formed in a small buffer and multiplied as matrices
+    let parts: Vec<(DMatrix<f64>, DMatrix<f64>)> = row_blocks(n)
+        .into_par_iter()
+        .map(|r| {
+            let xb = pack(&x, r.clone());
+            let applied = |m: &super::matrix::SymBanded| {
+                let mut yb = DMatrix::zeros(r.len(), k);
+                for (j, xj) in x.iter().enumerate() {
+                    m.mul_rows(xj, r.clone(), yb.column_mut(j).as_mut_slice());
+                }
+                xb.tr_mul(&yb)
+            };
+            let h = applied(problem.a);
+            let g = match problem.b {
+                None => xb.tr_mul(&xb),
+                Some(b) => applied(b),
+            };
+            (h, g)
+        })
+        .collect();
+    let (hs, gs): (Vec<_>, Vec<_>) = parts.into_iter().unzip();
+    let h = sum_parts(hs, k, k);
+    let g = sum_parts(gs, k, k);
+    let h = (&h + h.transpose()) * 0.5;
+    let mut g = (&g + g.transpose()) * 0.5;
+    if problem.b.is_none() {
+        mirror_upper(&mut g);
+    }
     let (vals, coef) = small_pencil(&h, &g)?;
     combine_in_place(&mut x, &coef);
     Ok((vals, x))
@@ -235,19 +251,9 @@ pub fn combine_in_place(x: &mut [Vec<f64>], q: &DMatrix<f64>) {
     }
     blocks.into_par_iter().for_each(|mut cols| {
         let len = cols.first().map_or(0, |c| c.len());
-        let mut out = vec![vec![0.0; len]; k];
-        for (j, o) in out.iter_mut().enumerate() {
-            for (i, xi) in cols.iter().enumerate() {
-                let c = q[(i, j)];
-                if c != 0.0 {
-                    for (ov, xv) in o.iter_mut().zip(xi.iter()) {
-                        *ov += c * xv;
-                    }
-                }
-            }
-        }
-        for (dst, src) in cols.iter_mut().zip(out) {
-            dst.copy_from_slice(&src);
+        let out = pack(&cols, 0..len) * q;
+        for (j, dst) in cols.iter_mut().enumerate() {
+            dst.copy_from_slice(out.column(j).as_slice());
         }
     });
 }

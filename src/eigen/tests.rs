@@ -173,6 +173,57 @@ fn harmonic_well_order4_matches_oscillator_levels() {
 }
 
 #[test]
+fn few_lowest_levels_no_longer_shift_below_the_spectrum() {
+    // Regression: 1-3 levels from the ground state at order 4-8 placed the
+    // Lanczos shift at the Gershgorin bound far below the spectrum (~666
+    // steps instead of ~36). Fewer levels must never take more Lanczos steps
+    // than more levels; the values still match the oscillator's.
+    // E_n = sqrt(2 t k) (n + 1/2) // Griffiths, Introduction to QM, eq. 2.61 with hbar^2 = 2 m t
+    let (l, n, k) = (16.0, 1600usize, 10.0);
+    let h = l / (n as f64 + 1.0);
+    let hw = (2.0 * T_E * k).sqrt();
+    for p in [2usize, 3, 4] {
+        let a = hamiltonian(n, h, h - l / 2.0, T_E, p, false, |x| 0.5 * k * x * x);
+        for with_b in [false, true] {
+            // a Numerov-like metric B = (1, 10, 1)/12 exercises the pencil path
+            let bm = SymBanded {
+                n,
+                bands: vec![vec![10.0 / 12.0; n], vec![1.0 / 12.0; n - 1]],
+                wrap: false,
+            };
+            let pr = Problem {
+                a: &a,
+                b: with_b.then_some(&bm),
+            };
+            let params = EigenParams {
+                method: Method::ShiftInvert,
+                ..Default::default()
+            };
+            let steps = |count: usize| {
+                let (ev, info) =
+                    solve(&pr, &Selection::Index { first: 0, count }, &params).unwrap();
+                check_ratios(&info);
+                assert_eq!(info.inertia_below, count);
+                if !with_b {
+                    for (j, &e) in ev.values.iter().enumerate() {
+                        approx::assert_relative_eq!(e, hw * (j as f64 + 0.5), max_relative = 1e-4);
+                    }
+                }
+                info.iterations
+            };
+            let four = steps(4);
+            for count in 1..=3 {
+                let few = steps(count);
+                assert!(
+                    few <= four,
+                    "p = {p}, B = {with_b}: {count} levels took {few} Lanczos steps, 4 levels {four}"
+                );
+            }
+        }
+    }
+}
+
+#[test]
 fn heavy_double_well_resolves_tunnel_pair() {
     // the tunnel splitting (~5e-15 eV here) is below eps ||H|| (~3e-13 eV): the two
     // levels are a rounding-level cluster; both must come back, ordered, orthonormal
@@ -485,7 +536,9 @@ proptest! {
         let pr = Problem { a: &disc.a, b: disc.b.as_ref() };
         let params = EigenParams {
             method: Method::Guided,
-            guesses: Some(order2_values(n, len, first, count, pot)),
+            guided: GuidedParams {
+                guesses: Some(order2_values(n, len, first, count, pot)),
+            },
             ..Default::default()
         };
         let (ev, info) = solve(&pr, &Selection::Index { first, count }, &params).unwrap();
@@ -532,7 +585,9 @@ fn guided_with_wrong_guesses_still_returns_the_window() {
         ] {
             let params = EigenParams {
                 method: Method::Guided,
-                guesses: Some(guesses),
+                guided: GuidedParams {
+                    guesses: Some(guesses),
+                },
                 ..Default::default()
             };
             let (ev, info) = solve(&pr, &Selection::Index { first, count }, &params).unwrap();
@@ -563,8 +618,10 @@ fn guided_auto_choice_and_errors() {
     let guesses = order2_values(n, len, 2, 3, pot);
     // Auto with guesses above the dense limit takes the guided path
     let auto = EigenParams {
-        guesses: Some(guesses.clone()),
-        dense_limit: 100,
+        guided: GuidedParams {
+            guesses: Some(guesses.clone()),
+        },
+        dense: DenseParams { limit: 100 },
         ..Default::default()
     };
     assert_eq!(solve(&pr, &sel, &auto).unwrap().1.method, Method::Guided);
@@ -576,7 +633,7 @@ fn guided_auto_choice_and_errors() {
     ] {
         let params = EigenParams {
             method: Method::Guided,
-            guesses,
+            guided: GuidedParams { guesses },
             ..Default::default()
         };
         assert!(matches!(
@@ -600,7 +657,9 @@ fn guided_result_does_not_depend_on_thread_count() {
         count: 6,
     };
     let params = EigenParams {
-        guesses: Some(order2_values(n, len, 30, 6, pot)),
+        guided: GuidedParams {
+            guesses: Some(order2_values(n, len, 30, 6, pot)),
+        },
         ..Default::default()
     };
     let run = |threads: usize| {

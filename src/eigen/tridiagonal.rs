@@ -35,14 +35,9 @@ use super::subspace::{dot, rayleigh_ritz_in_place};
 /// Result of the tridiagonal path.
 pub type TridiagonalOutput = super::params::PathOutput;
 
-/// Bytes needed for k levels of an n x n tridiagonal matrix.
-pub fn tridiagonal_bytes(n: usize, k: usize) -> usize {
-    let threads = rayon::current_num_threads().max(1);
-    n.saturating_mul(8).saturating_mul(3 * k + 3 * threads + 4)
-}
-
-/// One converged level: vector, iterations, final bracket.
-type LevelResult = (Vec<f64>, usize, f64, f64);
+/// One converged level: vector (empty when only values are wanted), its
+/// Rayleigh quotient, iterations, final bracket.
+type LevelResult = (Vec<f64>, f64, usize, f64, f64);
 
 struct Brackets {
     /// (shift, count) pairs, sorted by shift.
@@ -194,14 +189,19 @@ fn unit(z: &[f64]) -> Vec<f64> {
     z.iter().map(|x| x * inv).collect()
 }
 
-/// Levels `first..first+count` of the tridiagonal matrix `t` (p = 1, no wrap).
+/// Levels `first..first+count` of the tridiagonal matrix `t` (p = 1, no
+/// wrap). With `vectors` false only the values come back (`vectors` empty):
+/// each level's Rayleigh quotient, no vector kept and no Rayleigh-Ritz, in
+/// O(N) memory per thread instead of O(N k).
 pub fn solve_tridiagonal(
     t: &SymBanded,
     first: usize,
     count: usize,
     residual_tol: f64,
     max_iterations: usize,
+    vectors: bool,
 ) -> Result<TridiagonalOutput, EigenError> {
+    let want_vectors = vectors;
     let n = t.n;
     let d = &t.bands[0];
     let e: &[f64] = if t.bands.len() > 1 { &t.bands[1] } else { &[] };
@@ -299,6 +299,7 @@ pub fn solve_tridiagonal(
                 dm: vec![0.0; n],
                 z: vec![0.0; n],
             };
+            let keep = |z: &[f64]| if want_vectors { unit(z) } else { Vec::new() };
             let mut best: Option<(Vec<f64>, f64)> = None;
             let mut best_res = f64::INFINITY;
             let mut sigma = 0.5 * (l + u);
@@ -314,11 +315,11 @@ pub fn solve_tridiagonal(
                 let inside = rho >= l - slack && rho <= u + slack;
                 if inside && res < best_res {
                     best_res = res;
-                    best = Some((unit(&w.z), rho));
+                    best = Some((keep(&w.z), rho));
                 }
                 if inside && (res <= target || (res > 0.5 * prev_res && res <= accept)) {
-                    let (v, _) = best.take().unwrap_or((unit(&w.z), rho));
-                    return Ok((v, it, l, u));
+                    let (v, r) = best.take().unwrap_or_else(|| (keep(&w.z), rho));
+                    return Ok((v, r, it, l, u));
                 }
                 if inside {
                     prev_res = res;
@@ -329,7 +330,7 @@ pub fn solve_tridiagonal(
                 }
             }
             match best {
-                Some((v, _)) if best_res <= accept => Ok((v, max_iterations, l, u)),
+                Some((v, r)) if best_res <= accept => Ok((v, r, max_iterations, l, u)),
                 _ => Err(EigenError::NoConvergence {
                     level: j + 1,
                     iterations: max_iterations,
@@ -339,18 +340,22 @@ pub fn solve_tridiagonal(
         })
         .collect();
     let mut vectors = Vec::with_capacity(count);
+    let mut quotients = Vec::with_capacity(count);
     let mut iterations = 0;
     let mut final_brackets = Vec::with_capacity(count);
     for r in per_level {
-        let (v, it, l, u) = r?;
+        let (v, rho, it, l, u) = r?;
         iterations += it;
         factorizations += it;
         vectors.push(v);
+        quotients.push(rho);
         final_brackets.push((l, u));
     }
     // phase 3: Rayleigh-Ritz
     let problem = Problem { a: t, b: None };
-    let (values, mut vectors) = if count > 1 {
+    let (values, mut vectors) = if !want_vectors {
+        (quotients, Vec::new())
+    } else if count > 1 {
         rayleigh_ritz_in_place(&problem, vectors)?
     } else {
         let v = vectors.pop().map(|v| vec![v]).unwrap_or_default();

@@ -62,6 +62,11 @@ pub fn aligned_steps_within(
     let multiple = multiple.max(1);
     // Step counts near usize::MAX (a huge domain at a fine spacing) cannot
     // be searched; the caller's limits refuse such grids.
+    // Beyond 2^52 steps a grid position is no longer exact in f64, so
+    // alignment means nothing there.
+    if wanted > 1usize << 52 {
+        return None;
+    }
     let start = wanted.div_ceil(multiple).checked_mul(multiple)?;
     let above = (wanted as f64) * (1.0 + slack);
     if !(above < usize::MAX as f64) {

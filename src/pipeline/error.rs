@@ -1,11 +1,12 @@
 //! Why a solve could not finish, and whether the fault lies in the input.
 
+use crate::eigen::memory::gigabytes;
 use crate::eigen::EigenError;
 use crate::input::{InputError, Model, SourceText};
 use crate::observables::OccupancyError;
 use crate::potential::NonFinite;
 
-use super::limits::{GIB, MEMORY_LIMIT_BYTES, RESIDUAL_LIMIT, SMALLEST_BOX_LEVEL_EV};
+use super::limits::{RESIDUAL_LIMIT, SMALLEST_BOX_LEVEL_EV};
 
 /// Why a solve could not finish.
 #[derive(Debug, thiserror::Error)]
@@ -33,9 +34,10 @@ pub enum SolveError {
         /// Fewest unknowns that work.
         needed: usize,
     },
-    /// The solve would need more memory than [`MEMORY_LIMIT_BYTES`] (a
-    /// computation that cannot finish here).
-    #[error("a grid of {points} points with {levels} levels would need about {:.1} GiB, above the limit of {:.0} GiB; lower grid.points (or raise grid.spacing) or levels.count", .bytes / GIB, MEMORY_LIMIT_BYTES / GIB)]
+    /// The solve would need more memory than the limit
+    /// ([`crate::eigen::EigenParams::memory_limit`], half the machine's
+    /// memory by default; a computation that cannot finish here).
+    #[error("a grid of {points} points with {levels} levels would need about {}, above the limit of {} (half of this machine's memory); use at most {max_levels} levels on this grid (levels.count), or at most {max_points} points for these levels (grid.points, or a larger grid.spacing)", gigabytes(*.bytes), gigabytes(*.limit))]
     TooLarge {
         /// Unknowns of the grid.
         points: usize,
@@ -43,6 +45,12 @@ pub enum SolveError {
         levels: usize,
         /// The estimate, bytes.
         bytes: f64,
+        /// The limit in force, bytes.
+        limit: f64,
+        /// Most levels that fit on this grid.
+        max_levels: usize,
+        /// Most points that fit with these levels.
+        max_points: usize,
     },
     /// Rounding in a matrix of this norm blurs every energy by more than the
     /// domain's lowest kinetic energy: no level can be told from the next (a

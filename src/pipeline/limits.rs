@@ -1,23 +1,24 @@
-//! The pipeline's thresholds and its memory model, in one place: what a
-//! solve may plan to allocate, which residuals and rounding levels are
-//! accepted, and when a number earns a warning.
-
-/// Bytes in a GiB.
-pub const GIB: f64 = 1024.0 * 1024.0 * 1024.0;
-
-/// Most memory a solve may plan for, bytes: 8 GiB, a third of the 24 GiB
-/// machines chainwell is tested on, so that a mistyped `grid.points` is
-/// refused at once instead of exhausting the machine.
-pub const MEMORY_LIMIT_BYTES: f64 = 8.0 * GIB;
+//! The pipeline's thresholds and its share of the memory model, in one
+//! place: what a solve plans to allocate besides the eigen-solver (whose
+//! model and limit are in [`crate::eigen::memory`]), which residuals and
+//! rounding levels are accepted, and when a number earns a warning.
 
 /// Estimated bytes of a solve on `points` unknowns with a stencil of
-/// half-width `half_width` and `levels` levels: the banded matrix
-/// (`half_width + 1` diagonals), one vector per level, and four work
-/// vectors (positions, potential, two for the eigen-solver), in `f64`:
-/// `points * (half_width + 1 + levels + 4) * 8`. Computed in floating point,
-/// so that it cannot overflow.
-pub fn memory_estimate(points: usize, half_width: usize, levels: usize) -> f64 {
-    points as f64 * (half_width as f64 + 1.0 + levels as f64 + 4.0) * 8.0
+/// half-width `half_width` (and a metric B of half-width 1 when
+/// `generalized`, Numerov), whose eigen-solver needs `eigen_bytes`
+/// ([`crate::eigen::memory::eigen_bytes`], the one memory model): the
+/// banded matrices, four vectors of the grid (positions, potential, two
+/// work vectors), in `f64`, plus the eigen-solver's peak. The level
+/// vectors become the wavefunctions in place (finite differences), so they
+/// are counted once. Computed in floating point, so that it cannot overflow.
+pub fn memory_estimate(
+    points: usize,
+    half_width: usize,
+    generalized: bool,
+    eigen_bytes: usize,
+) -> f64 {
+    let metric = if generalized { 2.0 } else { 0.0 };
+    points as f64 * (half_width as f64 + 1.0 + metric + 4.0) * 8.0 + eigen_bytes as f64
 }
 
 /// **The one rounding figure** `R = eps ||H||_1` (eV; for Numerov `||K||_1`):

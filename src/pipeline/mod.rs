@@ -17,7 +17,8 @@
 //! - [`corners`]: kinks and weak breaks on grid points, and their stencil
 //!   corrections; the potential's slope at hard walls.
 //! - [`guards`]: memory, conditioning and residual checks; the round-off floor.
-//! - [`limits`]: the thresholds and the memory model those checks use.
+//! - [`limits`]: the thresholds those checks use, and the solve's memory
+//!   beside the eigen-solver's.
 //! - [`guesses`]: order-2 levels as shifts for the higher-order schemes.
 //! - [`on_grid`]: one solve on one grid ([`solve_on`]) or its energies only
 //!   ([`energies_on`]).
@@ -53,7 +54,7 @@ mod tests;
 pub use error::{Fault, SolveError};
 pub use gridding::{grid_for, grid_near, grid_near_within, interior_edges, wanted_steps, Breaks};
 pub use guards::roundoff_floor;
-pub use limits::{memory_estimate, MEMORY_LIMIT_BYTES};
+pub use limits::memory_estimate;
 pub use on_grid::{energies_on, solve_on};
 pub use solution::{Diagnostics, EdgeReport, Level, Refinement, RefinementStep, Solution, Timing};
 pub use spectrum::{ring_degeneracies, spectrum};

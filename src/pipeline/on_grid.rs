@@ -14,7 +14,8 @@ use super::guesses::with_order2_guesses;
 use super::{Solution, SolveError, Timing};
 
 /// The energies of levels `first..first + count` (0-based) on `grid`, with
-/// nothing else computed: the coarse grids of an error estimate.
+/// nothing else computed ([`eigen::eigenvalues`]: no vectors kept where the
+/// method allows, no diagnostics): the coarse grids of an error estimate.
 pub fn energies_on(
     model: &Model,
     grid: &Grid,
@@ -22,9 +23,15 @@ pub fn energies_on(
     count: usize,
     params: &EigenParams,
 ) -> Result<Vec<f64>, SolveError> {
+    check_size(model, grid, params)?;
     let d = discretise(model, grid)?;
     let selection = Selection::Index { first, count };
-    let (pairs, _) = eigenpairs(model, grid, &d, &selection, params)?;
+    let problem = Problem {
+        a: &d.disc.a,
+        b: d.disc.b.as_ref(),
+    };
+    let guided = with_order2_guesses(model, grid, &d.v, &problem, &selection, params);
+    let (pairs, _) = eigen::eigenvalues(&problem, &selection, guided.as_ref().unwrap_or(params))?;
     Ok(pairs.values)
 }
 
@@ -61,7 +68,7 @@ fn eigenpairs(
         a: &d.disc.a,
         b: d.disc.b.as_ref(),
     };
-    let guided = with_order2_guesses(model, grid, &d.v, selection, params);
+    let guided = with_order2_guesses(model, grid, &d.v, &problem, selection, params);
     Ok(eigen::solve(
         &problem,
         selection,
@@ -73,14 +80,14 @@ fn eigenpairs(
 pub fn solve_on(model: &Model, grid: &Grid, params: &EigenParams) -> Result<Solution, SolveError> {
     let start = Instant::now();
     check_scale(model)?;
-    check_size(model, grid)?;
+    check_size(model, grid, params)?;
     let d = discretise(model, grid)?;
     let rounding = check_conditioning(model, grid, &d)?;
     let selection = selection(model, grid.points)?;
     let t0 = Instant::now();
     let (pairs, info) = eigenpairs(model, grid, &d, &selection, params)?;
     let solve_s = t0.elapsed().as_secs_f64();
-    check_residuals(&d, &pairs)?;
+    check_residuals(&d, &pairs, &info)?;
     let mut sol = assemble(model, grid, d, pairs, &info, rounding)?;
     sol.timing = Timing {
         solve_s,

@@ -214,9 +214,10 @@ pub fn memory_estimate(points: usize, kpoints: usize, nbands: usize, threads: us
 }
 
 /// Refuses a band study whose [`memory_estimate`] is above
-/// [`crate::pipeline::MEMORY_LIMIT_BYTES`], saying what to change.
+/// the eigen-solver's limit ([`crate::eigen::memory::default_limit`]: half
+/// the machine's memory), saying what to change.
 fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
-    use crate::pipeline::MEMORY_LIMIT_BYTES;
+    let limit = crate::eigen::memory::default_limit() as f64;
     let points = cell_points(model);
     let nbands = if model.levels.count_given {
         model.levels.count
@@ -225,13 +226,13 @@ fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
     };
     let threads = rayon::current_num_threads();
     let bytes = memory_estimate(points, kpoints, nbands, threads);
-    if bytes <= MEMORY_LIMIT_BYTES {
+    if bytes <= limit {
         return Ok(());
     }
     let gib = 1024.0 * 1024.0 * 1024.0;
     let results = memory_estimate(0, kpoints, nbands, threads);
     let change = if bytes - results > bytes / 2.0 {
-        if threads > 1 && memory_estimate(points, kpoints, nbands, 1) <= MEMORY_LIMIT_BYTES {
+        if threads > 1 && memory_estimate(points, kpoints, nbands, 1) <= limit {
             "use a coarser grid.spacing (fewer points per cell) or fewer threads (RAYON_NUM_THREADS=1)"
         } else {
             "use a coarser grid.spacing (fewer points per cell)"
@@ -242,7 +243,7 @@ fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
     Err(Fault::Compute(format!(
         "the bands of a cell of {points} points at {kpoints} k points would need about {:.1} GiB (a dense {points} x {points} complex matrix per k point, {threads} at a time), above the limit of {:.0} GiB; {change}",
         bytes / gib,
-        MEMORY_LIMIT_BYTES / gib
+        limit / gib
     )))
 }
 
