@@ -381,7 +381,7 @@ fn oversized_grids_are_refused_before_allocating() {
         let err = String::from_utf8_lossy(&out.stderr);
         assert_eq!(out.status.code(), Some(1), "{set}: {err}");
         assert!(
-            err.starts_with("error: ") && err.contains("GiB"),
+            err.starts_with("error: ") && err.contains(" GB"),
             "{set}: {err}"
         );
         assert!(err.contains("grid.points"), "{set}: {err}");

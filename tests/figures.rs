@@ -571,9 +571,15 @@ fn fit_residuals_have_the_documents_sign_and_a_key() {
         })
         .collect();
     rows.sort_by(|a, b| a.0.total_cmp(&b.0));
-    // The model curve is evaluated between the data too.
+    // The model curve spans the data; a whole-number key stays on the
+    // data's parity (odd bond counts here: 3, 5, ..., 17, every one).
     let curve = doc["curve"].as_array().unwrap();
-    assert!(curve.len() > rows.len(), "{} curve points", curve.len());
+    assert_eq!(curve.len(), rows.len(), "{} curve points", curve.len());
+    assert_eq!(curve[0]["value"].as_f64(), Some(rows[0].0));
+    assert_eq!(
+        curve[curve.len() - 1]["value"].as_f64(),
+        Some(rows[rows.len() - 1].0)
+    );
     assert_eq!(doc["termination"], "converged");
     let svg = std::fs::read_to_string(&svg_path).unwrap();
     let parsed = roxmltree::Document::parse(&svg).unwrap();

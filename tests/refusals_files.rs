@@ -289,7 +289,7 @@ const CASES: &[Case] = &[
             args(&["bands", "pc.toml", "--set", "grid.spacing=0.0001"])
         },
         exit: 1,
-        says: &["GiB", "coarser grid.spacing"],
+        says: &[" GB", "coarser grid.spacing"],
         never: &[],
     },
     Case {
@@ -299,7 +299,7 @@ const CASES: &[Case] = &[
             args(&["bands", "pc.toml", "--kpoints", "1000000000"])
         },
         exit: 1,
-        says: &["GiB", "fewer --kpoints"],
+        says: &[" GB", "fewer --kpoints"],
         never: &[],
     },
     // 4. Endless, huge or special files where a file is expected.

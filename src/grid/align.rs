@@ -69,7 +69,7 @@ pub fn aligned_steps_within(
     }
     let start = wanted.div_ceil(multiple).checked_mul(multiple)?;
     let above = (wanted as f64) * (1.0 + slack);
-    if !(above < usize::MAX as f64) {
+    if above.is_nan() || above >= usize::MAX as f64 {
         return None;
     }
     let stop = (above.ceil() as usize).checked_add(multiple)?;

@@ -37,7 +37,7 @@ pub enum SolveError {
     /// The solve would need more memory than the limit
     /// ([`crate::eigen::EigenParams::memory_limit`], half the machine's
     /// memory by default; a computation that cannot finish here).
-    #[error("a grid of {points} points with {levels} levels would need about {}, above the limit of {} (half of this machine's memory); use at most {max_levels} levels on this grid (levels.count), or at most {max_points} points for these levels (grid.points, or a larger grid.spacing)", gigabytes(*.bytes), gigabytes(*.limit))]
+    #[error("{}", too_large(*.points, *.levels, *.bytes, *.limit, *.max_levels, *.max_points))]
     TooLarge {
         /// Unknowns of the grid.
         points: usize,
@@ -213,5 +213,27 @@ impl SolveError {
             | SolveError::Response(_)
             | SolveError::Eigen(_) => Fault::Compute(self.to_string()),
         }
+    }
+}
+
+/// The message of [`SolveError::TooLarge`]: the sizes in GB and what to
+/// change (fewer levels only when at least one level fits on the grid).
+fn too_large(
+    points: usize,
+    levels: usize,
+    bytes: f64,
+    limit: f64,
+    max_levels: usize,
+    max_points: usize,
+) -> String {
+    let head = format!(
+        "a grid of {points} points with {levels} levels would need about {}, above the limit of {} (half of this machine's memory)",
+        gigabytes(bytes),
+        gigabytes(limit)
+    );
+    if max_levels == 0 {
+        format!("{head}; use at most {max_points} points (grid.points, or a larger grid.spacing)")
+    } else {
+        format!("{head}; use at most {max_levels} levels on this grid (levels.count), or at most {max_points} points for these levels (grid.points, or a larger grid.spacing)")
     }
 }

@@ -339,7 +339,7 @@ pub(super) fn write(scene: &Scene, dpi: f64) -> Result<Vec<u8>, PlotError> {
     let n = doc.offsets.len() + 1;
     let mut tail = format!("xref\n0 {n}\n0000000000 65535 f \n");
     for off in &doc.offsets {
-        let _ = write!(tail, "{off:010} 00000 n \n");
+        let _ = writeln!(tail, "{off:010} 00000 n ");
     }
     let _ = write!(
         tail,

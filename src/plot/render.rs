@@ -102,12 +102,13 @@ pub fn render_pdf(figure: &Figure, style: &Style) -> Result<Vec<u8>, PlotError> 
     pdf::write(&sc, dpi)
 }
 
+/// Labels with the box `[x0, y0, x1, y1]` their glyphs cover, and the
+/// canvas size (width, height) in pixels.
+pub type LabelBoxes = (Vec<(String, [f64; 4])>, (u32, u32));
+
 /// Every label of the drawn figure with the box `[x0, y0, x1, y1]` its
 /// glyphs cover, in pixels from the top left, and the canvas size.
-pub fn label_boxes(
-    figure: &Figure,
-    style: &Style,
-) -> Result<(Vec<(String, [f64; 4])>, (u32, u32)), PlotError> {
+pub fn label_boxes(figure: &Figure, style: &Style) -> Result<LabelBoxes, PlotError> {
     let (sc, _) = scene(figure, style)?;
     let boxes = sc
         .label_boxes()

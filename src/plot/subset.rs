@@ -35,8 +35,11 @@ fn u32_at(b: &[u8], at: usize) -> Result<u32, PlotError> {
         .ok_or_else(|| bad("truncated"))
 }
 
+/// A font table: its tag and bytes.
+type Table<'a> = ([u8; 4], &'a [u8]);
+
 /// The tables of a font file: tag and bytes.
-fn tables(font: &[u8]) -> Result<Vec<([u8; 4], &[u8])>, PlotError> {
+fn tables(font: &[u8]) -> Result<Vec<Table<'_>>, PlotError> {
     let n = usize::from(u16_at(font, 4)?);
     (0..n)
         .map(|i| {

@@ -101,13 +101,7 @@ pub fn key_title(key: &str, length: &str, energy: &str) -> String {
     // `term.2.height` and `chain.site.1.height` name their table and index.
     let owner = match parts.as_slice() {
         [.., table, index, _] if index.parse::<usize>().is_ok() => {
-            let t = match *table {
-                "term" => "term",
-                "site" => "site",
-                "bond" => "bond",
-                other => other,
-            };
-            format!("{t} {index} ")
+            format!("{table} {index} ")
         }
         [section, _] if *section == "domain" || *section == "chain" => String::new(),
         _ => String::new(),

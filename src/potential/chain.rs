@@ -63,7 +63,7 @@ pub struct ChainSpec {
 impl ChainSpec {
     /// Number of atoms, `bonds + 1`.
     pub fn atoms(&self) -> usize {
-        self.bonds + 1
+        self.bonds.saturating_add(1)
     }
     /// Box length `bonds * bond_length + 2 * end_extension`, Å.
     pub fn box_length(&self) -> f64 {
@@ -77,12 +77,15 @@ impl ChainSpec {
             .iter()
             .filter_map(|s| s.electrons.map(|e| e as i64 - 1))
             .sum();
-        (self.atoms() as i64 + extra).max(0) as usize
+        let atoms = i64::try_from(self.atoms()).unwrap_or(i64::MAX);
+        atoms.saturating_add(extra).max(0) as usize
     }
     /// Pi electrons of the chain, `contributions - charge` (may be zero or
     /// negative for an impossible charge; the input checker refuses that).
     pub fn electrons(&self) -> i64 {
-        self.contributions() as i64 - self.charge
+        i64::try_from(self.contributions())
+            .unwrap_or(i64::MAX)
+            .saturating_sub(self.charge)
     }
     /// Position of atom `a` (1-based), Å from the left end of the box.
     pub fn atom_position(&self, a: usize) -> f64 {

@@ -229,7 +229,6 @@ fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
     if bytes <= limit {
         return Ok(());
     }
-    let gib = 1024.0 * 1024.0 * 1024.0;
     let results = memory_estimate(0, kpoints, nbands, threads);
     let change = if bytes - results > bytes / 2.0 {
         if threads > 1 && memory_estimate(points, kpoints, nbands, 1) <= limit {
@@ -240,10 +239,11 @@ fn check_memory(model: &Model, kpoints: usize) -> Result<(), Fault> {
     } else {
         "use fewer --kpoints (or fewer bands, levels.count)"
     };
+    use crate::eigen::memory::gigabytes;
     Err(Fault::Compute(format!(
-        "the bands of a cell of {points} points at {kpoints} k points would need about {:.1} GiB (a dense {points} x {points} complex matrix per k point, {threads} at a time), above the limit of {:.0} GiB; {change}",
-        bytes / gib,
-        limit / gib
+        "the bands of a cell of {points} points at {kpoints} k points would need about {} (a dense {points} x {points} complex matrix per k point, {threads} at a time), above the limit of {} (half of this machine's memory); {change}",
+        gigabytes(bytes),
+        gigabytes(limit)
     )))
 }
 

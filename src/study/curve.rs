@@ -31,17 +31,10 @@ pub fn abscissae(data: &[CaseValue], points: usize) -> Vec<CaseValue> {
     }
     if whole {
         let (a, b) = (lo as i64, hi as i64);
-        let gcd = |mut x: i64, mut y: i64| {
-            while y != 0 {
-                (x, y) = (y, x % y);
-            }
-            x.abs()
-        };
-        let step = xs
-            .iter()
-            .map(|x| (*x as i64).saturating_sub(a))
-            .fold(0, gcd)
-            .max(1);
+        // Counts of one parity (odd bond counts, say) stay on that parity:
+        // between them lies a different kind of molecule.
+        let one_parity = xs.iter().all(|x| ((*x as i64).wrapping_sub(a)) % 2 == 0);
+        let step = if one_parity && b > a { 2 } else { 1 };
         let count = b.saturating_sub(a) / step;
         if count < points as i64 {
             return (0..=count).map(|k| CaseValue::Int(a + k * step)).collect();
@@ -67,6 +60,29 @@ pub fn abscissae(data: &[CaseValue], points: usize) -> Vec<CaseValue> {
             CaseValue::Float(x)
         })
         .collect()
+}
+
+/// The curve a fit reports: [`curve`] when the data have one key column;
+/// with several, a row sets keys the abscissa alone cannot interpolate
+/// (electrons with bonds, say), so the model runs through its values at
+/// the data only (`model`, one per data row).
+pub fn fitted_curve(
+    spec: &FitSpec,
+    p: &[f64],
+    model: &[f64],
+    points: usize,
+    stop: Option<&AtomicBool>,
+) -> Result<Vec<(f64, f64)>, EvalError> {
+    if spec.data.keys.len() > 1 {
+        return Ok(spec
+            .data
+            .rows
+            .iter()
+            .zip(model)
+            .map(|(r, m)| (r.value.as_f64(), *m))
+            .collect());
+    }
+    curve(spec, p, points, stop)
 }
 
 /// The model quantity at the fitted external values `p` of the free keys,

@@ -29,7 +29,7 @@
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::Mutex;
 
-use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt, TerminationReason};
+use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
 use nalgebra::storage::Owned;
 use nalgebra::{DMatrix, DVector, Dyn};
 use rayon::prelude::*;
@@ -38,6 +38,7 @@ use super::cases::CaseValue;
 pub use super::data::{Data, DataError, DataRow};
 use super::quantity::{Quantity, QuantityError};
 use super::runner::Runner;
+pub use super::termination::termination_word;
 use crate::input::{Document, InputError, Override};
 use crate::pipeline::{self, SolveError};
 
@@ -524,27 +525,6 @@ fn check_determined(spec: &FitSpec, j: &DMatrix<f64>) -> Result<(), FitError> {
     Ok(())
 }
 
-/// Why the minimiser stopped, as a plain word or phrase for documents:
-/// `converged` (relative reduction of the sum of squares or of the step
-/// below the tolerance, J. J. Moré, "The Levenberg-Marquardt algorithm:
-/// implementation and theory", Lecture Notes in Mathematics 630 (1978)),
-/// `residuals zero`, `orthogonal` (residuals orthogonal to the Jacobian's
-/// columns), or the reason it failed.
-pub fn termination_word(t: &TerminationReason) -> String {
-    match t {
-        TerminationReason::Converged { .. } => "converged".into(),
-        TerminationReason::ResidualsZero => "residuals zero".into(),
-        TerminationReason::Orthogonal => "orthogonal".into(),
-        TerminationReason::LostPatience => "too many evaluations".into(),
-        TerminationReason::NoImprovementPossible(why) => format!("no improvement possible ({why})"),
-        TerminationReason::NoParameters => "no free parameters".into(),
-        TerminationReason::NoResiduals => "no data rows".into(),
-        TerminationReason::User(why) => format!("stopped ({why})"),
-        TerminationReason::Numerical(why) => format!("numerical failure ({why})"),
-        TerminationReason::WrongDimensions(why) => format!("wrong dimensions ({why})"),
-    }
-}
-
 /// Runs the fit. The runner's stop flag (Ctrl-C) ends it early with
 /// [`FitError::Interrupted`] carrying the best values so far; each new best
 /// is offered to the runner's checkpoint.
@@ -608,22 +588,12 @@ pub fn fit(spec: &FitSpec, runner: &Runner<'_, FitProgress>) -> Result<FitResult
         source: Box::new(source),
     })?;
     check_determined(spec, &j)?;
-    // With several key columns a row sets keys the curve's abscissa alone
-    // cannot interpolate (electrons with bonds, say): the model is then
-    // drawn through its values at the data only.
-    let curve = if spec.data.keys.len() > 1 {
-        spec.data
-            .rows
-            .iter()
-            .zip(&model)
-            .map(|(r, m)| (r.value.as_f64(), *m))
-            .collect()
-    } else {
-        super::curve::curve(spec, &p, CURVE_POINTS, stop).map_err(|_| FitError::Interrupted {
+    let curve = super::curve::fitted_curve(spec, &p, &model, CURVE_POINTS, stop).map_err(|_| {
+        FitError::Interrupted {
             best: p.clone(),
             evaluations: evals,
-        })?
-    };
+        }
+    })?;
     let w = weights(spec);
     let chi2: f64 = model
         .iter()

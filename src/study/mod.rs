@@ -24,6 +24,7 @@ pub mod quantity;
 pub mod runner;
 pub mod sweep;
 pub mod target;
+pub mod termination;
 
 pub use cases::{Case, CaseGrid, CaseValue, Shard, Vary};
 pub use fit::FitResult;

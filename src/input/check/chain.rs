@@ -134,7 +134,8 @@ impl Checker<'_> {
         };
         // Between one pi electron and two per atom (a full pi shell).
         let electrons = spec.electrons();
-        if electrons < 1 || electrons > 2 * atoms as i64 {
+        let most = i64::try_from(atoms).unwrap_or(i64::MAX).saturating_mul(2);
+        if electrons < 1 || electrons > most {
             let (span, key) = match &c.charge {
                 Some(q) => (q.span(), "chain.charge"),
                 None => (c.bonds.span(), "chain.site"),
@@ -145,7 +146,7 @@ impl Checker<'_> {
                 format!(
                     "the chain's {atoms} atoms give {} pi electrons and its charge is {charge}: that leaves {electrons}, but a chain holds 1 to {} (two per atom)",
                     spec.contributions(),
-                    2 * atoms
+                    most
                 ),
             ));
         }

@@ -114,8 +114,9 @@ impl BandedLu {
             window.swap(0, self.piv[k]);
             y[k] = window[0];
             let rows = (p + 1).min(n - k);
-            for s in 1..rows {
-                window[s] -= self.l[k * p + s - 1] * y[k];
+            let yk = y[k];
+            for (ws, l) in window[1..rows].iter_mut().zip(&self.l[k * p..]) {
+                *ws -= l * yk;
             }
             window.rotate_left(1);
             window[p] = if k + 1 + p < n { b[k + 1 + p] } else { 0.0 };

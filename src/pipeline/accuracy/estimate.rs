@@ -5,7 +5,7 @@ use crate::eigen::EigenParams;
 use crate::grid::Grid;
 use crate::input::Model;
 
-use super::{analyse, expected_order, smoothness};
+use super::{analyse, expected_order, smoothness, Smoothness};
 use crate::pipeline::{energies_on, Solution, SolveError};
 
 /// Coarse step counts for the estimate: `M/2` and `M/4` (rounded).
@@ -48,17 +48,32 @@ pub fn estimate(model: &Model, sol: &mut Solution, params: &EigenParams) -> Resu
     let (r2, r3) = (g2.spacing / h, g3.spacing / h);
     let order = expected_order(model, &sol.edges);
     let smooth = smoothness(&sol.edges);
+    // The scheme's own order: a level that does not feel what lowers the
+    // expected order (a wall slope where the state has died away) may
+    // converge at up to this order, which is then no sign of accident.
+    let nominal = f64::from(model.grid.accuracy_order());
     for (j, level) in sol.levels.iter_mut().enumerate() {
-        let a = analyse(
-            level.energy,
-            e2[j],
-            e3.as_ref().map(|e| e[j]),
-            r2,
-            r3,
-            order,
-            sol.roundoff_floor,
-            smooth,
-        );
+        let at = |order: f64| {
+            analyse(
+                level.energy,
+                e2[j],
+                e3.as_ref().map(|e| e[j]),
+                r2,
+                r3,
+                order,
+                sol.roundoff_floor,
+                smooth,
+            )
+        };
+        let mut a = at(order);
+        if a.widened
+            && smooth == Smoothness::Smooth
+            && nominal > order
+            && a.observed_order
+                .is_some_and(|q| q <= nominal + super::richardson::ORDER_EXCESS)
+        {
+            a = at(nominal);
+        }
         level.error_estimate = Some(a.estimate);
         level.extrapolated = Some(a.extrapolated);
         level.observed_order = a.observed_order;
