@@ -17,3 +17,5 @@ $cw fit potentials/alternating_chain.toml --data potentials/demo_series.csv \
     --free chain.alternation,chain.end_extension --set grid.spacing=0.05 --plot "$out/fit.svg"
 $cw bands potentials/polymer_cell.toml --finite 5:41:4 --energy-window -1:12 --plot "$out/bands.svg"
 $cw converge potentials/harmonic_well.toml --set grid.points=400 --plot "$out/converge.svg"
+$cw sweep potentials/streptocyanines.toml --vary chain.bonds=4:12:2 --set chain.end_extension=1.53 \
+    --set chain.bond_length=1.266 --data potentials/streptocyanines.csv --plot "$out/cyanines.svg"

@@ -11,7 +11,7 @@
 //! (the Taylor convention, "T" in A. Willetts, J. E. Rice, D. M. Burland and
 //! D. P. Shelton, J. Chem. Phys. 97, 7590 (1992)). An electron (charge -e)
 //! in the field gains the potential `+e F x`, so each level's energy is the
-//! series of the pencil `(A + F V) z = E M z` ([`series`]); for independent
+//! series of the pencil `(A + F V) z = E M z` ([`mod@series`]); for independent
 //! electrons the energy is the sum of the filled levels' energies weighted
 //! by their electrons, and so are α = -2 E2, β = -6 E3 and γ = -24 E4.
 //!
