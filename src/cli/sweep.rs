@@ -112,31 +112,7 @@ pub const BAR_AFTER: Duration = Duration::from_secs(1);
 
 /// Maps a failed case to a command error, locating input faults.
 fn case_error(spec: &SweepSpec, e: SweepError) -> CommandError {
-    match e {
-        SweepError::Input(i) => CommandError::Input(i),
-        SweepError::Document(m) => CommandError::Usage(m),
-        SweepError::Solve {
-            case,
-            label,
-            source,
-        } => {
-            let c = spec.grid.case(case);
-            match sweep::load_case(spec, &c) {
-                Ok((model, text)) => match source.locate(&model, &text).into() {
-                    CommandError::Input(i) => {
-                        let mut i = sweep::vary_error(i, spec, &c);
-                        if !i.location.file.starts_with("--vary") {
-                            i.message = format!("case {label}: {}", i.message);
-                        }
-                        CommandError::Input(i)
-                    }
-                    CommandError::Compute(m) => CommandError::Compute(format!("case {label}: {m}")),
-                    other => other,
-                },
-                Err(i) => CommandError::Input(i),
-            }
-        }
-    }
+    sweep::locate_error(spec, e).into()
 }
 
 /// A closed set of warnings: each distinct text once, with the first case
