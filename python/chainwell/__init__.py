@@ -238,8 +238,9 @@ class Sweep:
     - ``rows`` (also ``len()``, iteration and indexing): the document's rows,
       one dict per case (``case``, ``value``, ``levels``, ``occupancy``, ...);
     - ``table``: the tidy long form of ``chainwell sweep --csv``, one dict per
-      case and level (``case``, the varied keys, ``n``, ``energy``,
-      ``occupied``, ``homo``, ``lumo``, ``gap``, ``wavelength_nm``);
+      case and level (``case``, the varied keys, ``n``, ``energy (eV)``,
+      ``occupied``, ``homo``, ``lumo``, ``gap (eV)``, ``wavelength (nm)``;
+      the input's energy unit in place of eV);
     - ``to_pandas()``: ``table`` as a DataFrame; ``to_dict()``: the document.
     """
 

@@ -167,7 +167,7 @@ def test_a_computation_that_cannot_finish_raises_runtime_error():
     # 2^31 unknowns with 200 levels need far more memory than the limit:
     # the library refuses before allocating (a computation that cannot
     # finish here, not a fault of the input).
-    with pytest.raises(RuntimeError, match="GiB"):
+    with pytest.raises(RuntimeError, match=" GB"):
         chainwell.solve(BOX, set={"grid.points": 2**31, "levels.count": 200})
 
 
@@ -188,7 +188,7 @@ def test_sweep_over_three_bond_counts_gives_three_rows():
         assert [lv["energy"] for lv in row["levels"]] == list(one.energies)
     # The tidy long form: one line per case and level, as the CSV.
     assert len(result.table) == 3 * 8
-    assert list(result.table[0])[:4] == ["case", "chain.bonds", "n", "energy"]
+    assert list(result.table[0])[:4] == ["case", "chain.bonds", "n", "energy (eV)"]
     assert result.table[8]["chain.bonds"] == 5 and result.table[8]["n"] == 1
     assert result.to_dict()["format"] == "chainwell.sweep/1"
 
