@@ -31,6 +31,20 @@ fn escape(s: &str) -> String {
     out
 }
 
+/// The paint of a closed shape: filled with `ink`, or outlined in it with
+/// a stroke of `width`.
+fn look(fill: bool, ink: Ink, width: f64) -> String {
+    if fill {
+        paint("fill", ink)
+    } else {
+        format!(
+            r#" fill="none"{} stroke-width="{}""#,
+            paint("stroke", ink),
+            num(width)
+        )
+    }
+}
+
 fn paint(kind: &str, ink: Ink) -> String {
     let mut s = format!(r#" {kind}="{}""#, ink.rgb.hex());
     if ink.alpha < 1.0 {
@@ -95,15 +109,7 @@ pub(super) fn write(scene: &Scene) -> String {
                 width,
                 fill,
             } => {
-                let look = if *fill {
-                    paint("fill", *ink)
-                } else {
-                    format!(
-                        r#" fill="none"{} stroke-width="{}""#,
-                        paint("stroke", *ink),
-                        num(*width)
-                    )
-                };
+                let look = look(*fill, *ink, *width);
                 writeln!(
                     out,
                     r#"<rect x="{}" y="{}" width="{}" height="{}"{look}/>"#,
@@ -120,15 +126,7 @@ pub(super) fn write(scene: &Scene) -> String {
                 width,
                 fill,
             } => {
-                let look = if *fill {
-                    paint("fill", *ink)
-                } else {
-                    format!(
-                        r#" fill="none"{} stroke-width="{}""#,
-                        paint("stroke", *ink),
-                        num(*width)
-                    )
-                };
+                let look = look(*fill, *ink, *width);
                 writeln!(
                     out,
                     r#"<circle cx="{}" cy="{}" r="{}"{look}/>"#,
