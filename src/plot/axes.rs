@@ -496,6 +496,26 @@ pub(super) fn bounds_of(x: (f64, f64), y: (f64, f64)) -> Bounds {
     }
 }
 
+/// Writes an integer exponent with Unicode superscript digits.
+pub(super) fn superscript(k: i32) -> String {
+    k.to_string()
+        .chars()
+        .map(|c| match c {
+            '-' => '⁻',
+            '0' => '⁰',
+            '1' => '¹',
+            '2' => '²',
+            '3' => '³',
+            '4' => '⁴',
+            '5' => '⁵',
+            '6' => '⁶',
+            '7' => '⁷',
+            '8' => '⁸',
+            _ => '⁹',
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

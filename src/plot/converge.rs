@@ -11,7 +11,7 @@
 
 use super::axes::{
     check, check_finite, check_len, clip_polyline, draw_err, extent, label_areas, nice, outline,
-    text, titled, usable, Bounds, Pt,
+    superscript, text, titled, usable, Bounds, Pt,
 };
 use super::style::Px;
 use super::{PlotError, Style};
@@ -116,26 +116,6 @@ fn reference(fig: &ConvergeFigure, (h0, h1): (f64, f64)) -> Option<[Pt; 2]> {
         .min_by(|a, b| a.0.total_cmp(b.0))?;
     let c = REFERENCE_OFFSET * e / h.powf(fig.order);
     Some([(h0, c * h0.powf(fig.order)), (h1, c * h1.powf(fig.order))])
-}
-
-/// Writes an integer exponent with Unicode superscript digits.
-fn superscript(k: i32) -> String {
-    k.to_string()
-        .chars()
-        .map(|c| match c {
-            '-' => '⁻',
-            '0' => '⁰',
-            '1' => '¹',
-            '2' => '²',
-            '3' => '³',
-            '4' => '⁴',
-            '5' => '⁵',
-            '6' => '⁶',
-            '7' => '⁷',
-            '8' => '⁸',
-            _ => '⁹',
-        })
-        .collect()
 }
 
 /// Ticks of a log axis over `[lo, hi]`: labelled ticks at powers of ten

@@ -13,6 +13,7 @@
 //! P. Atkins and J. de Paula, Physical Chemistry, 8th ed., Sect. 13.2; the
 //! figure only draws the numbers it is given.
 
+use super::axes::superscript;
 use super::axes::{
     axis_range, bounds_of, check, check_finite, check_len, draw_err, extent, frame, label_areas,
     legend, nice, polyline, text, title_scale, titled, usable, y_area, y_ticks, Pt, Swatch,
@@ -250,26 +251,6 @@ impl SpectrumFigure {
         let span = (hi - lo).max(0.1 * hi);
         Some(((lo - 0.08 * span).max(0.5 * lo), hi + 0.08 * span))
     }
-}
-
-/// Superscript digits and minus sign for a power of ten.
-fn superscript(p: i32) -> String {
-    p.to_string()
-        .chars()
-        .map(|c| match c {
-            '-' => '⁻',
-            '0' => '⁰',
-            '1' => '¹',
-            '2' => '²',
-            '3' => '³',
-            '4' => '⁴',
-            '5' => '⁵',
-            '6' => '⁶',
-            '7' => '⁷',
-            '8' => '⁸',
-            _ => '⁹',
-        })
-        .collect()
 }
 
 /// The power of ten that ε tick labels are divided by: the decade of the
