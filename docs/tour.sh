@@ -19,3 +19,5 @@ $cw bands potentials/polymer_cell.toml --finite 5:41:4 --energy-window -1:12 --p
 $cw converge potentials/harmonic_well.toml --set grid.points=400 --plot "$out/converge.svg"
 $cw sweep potentials/streptocyanines.toml --vary chain.bonds=4:12:2 --set chain.end_extension=1.53 \
     --set chain.bond_length=1.266 --data potentials/streptocyanines.csv --plot "$out/cyanines.svg"
+$cw sweep potentials/polyenes.toml --vary chain.bonds=3:21:2 --set chain.alternation=2.46 \
+    --data potentials/polyenes.csv --plot "$out/polyenes.svg"
